@@ -1,0 +1,8 @@
+# Warning policy: one function, applied to every target of the project.
+function(dewmargin_set_warnings target)
+  target_compile_options(${target} PRIVATE -Wall -Wextra -Wpedantic -Wshadow -Wconversion
+                         -Wno-sign-conversion -Wnon-virtual-dtor -Wold-style-cast -Wnull-dereference)
+  if(DEWMARGIN_WERROR)
+    target_compile_options(${target} PRIVATE -Werror)
+  endif()
+endfunction()

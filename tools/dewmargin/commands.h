@@ -1,0 +1,26 @@
+#pragma once
+// Subcommands of `dewmargin`. Each returns the process exit code:
+// 0 success, 1 runtime failure, 2 bad usage or bad config/input.
+#include <iosfwd>
+#include <optional>
+#include <string>
+
+namespace dewmargin::cli {
+
+inline constexpr int k_exit_ok = 0;
+inline constexpr int k_exit_runtime = 1;
+inline constexpr int k_exit_usage = 2;
+
+struct dewpoint_options {
+  std::string temp_text;      // kept as text so "abc" can be reported exactly
+  std::string rh_text;
+  std::string unit = "C";     // C or F, applies to --temp and the output
+  bool json = false;
+  std::string formula = "sonntag";  // sonntag | alduchov
+};
+int run_dewpoint(const dewpoint_options& options, std::ostream& out, std::ostream& err);
+
+// Validates a config file and prints a summary of zones, loops and inputs.
+int run_check(const std::string& file, std::ostream& out, std::ostream& err);
+
+}  // namespace dewmargin::cli
