@@ -1,11 +1,12 @@
-#include "dewmargin/cooling_output.h"
-
 #include <gtest/gtest.h>
 
+#include <cctype>
 #include <cmath>
 #include <iostream>
 #include <limits>
+#include <string>
 
+#include "dewmargin/cooling_output.h"
 #include "dewmargin/units.h"
 #include "dewmargin/water_properties.h"
 
@@ -66,6 +67,9 @@ struct cooling_error_case {
 
 class LoopCoolingOutputErrors : public ::testing::TestWithParam<cooling_error_case> {};
 
+// gtest prints the case in ctest's test names: the description, not a byte dump.
+void PrintTo(const cooling_error_case& c, std::ostream* os) { *os << c.what; }
+
 TEST_P(LoopCoolingOutputErrors, NamesTheError) {
   const auto& c = GetParam();
   const auto q = loop_cooling_kw(c.supply_c, c.return_c, c.flow_l_s);
@@ -84,7 +88,14 @@ INSTANTIATE_TEST_SUITE_P(
                       cooling_error_case{"NaN supply", k_nan, 19.0, 0.5, error_code::not_finite},
                       cooling_error_case{"infinite return", 16.0, k_inf, 0.5, error_code::not_finite},
                       cooling_error_case{"supply below 0 °C", -2.0, 19.0, 0.5, error_code::out_of_range},
-                      cooling_error_case{"return above 60 °C", 50.0, 65.0, 0.5, error_code::out_of_range}));
+                      cooling_error_case{"return above 60 °C", 50.0, 65.0, 0.5, error_code::out_of_range}),
+    [](const ::testing::TestParamInfo<cooling_error_case>& case_info) {
+      std::string name = case_info.param.what;
+      for (char& ch : name) {
+        if (!std::isalnum(static_cast<unsigned char>(ch))) ch = '_';
+      }
+      return name;
+    });
 
 }  // namespace
 }  // namespace dewmargin

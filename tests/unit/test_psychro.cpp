@@ -1,6 +1,4 @@
 // Checks of the psychrometric core against outside sources. Each check names its source.
-#include "dewmargin/psychro.h"
-
 #include <gtest/gtest.h>
 
 #include <algorithm>
@@ -11,6 +9,8 @@
 #include <sstream>
 #include <string>
 #include <vector>
+
+#include "dewmargin/psychro.h"
 
 namespace dewmargin::psychro {
 namespace {
@@ -50,9 +50,9 @@ TEST(Psychro, SaturationPressureIsCloseToTabulatedSteamValues) {
     double t_c;
     double e_hpa;
   };
-  for (const tabulated& row : {tabulated{0.0, 6.112}, tabulated{10.0, 12.28}, tabulated{20.0, 23.39},
-                               tabulated{25.0, 31.70}, tabulated{30.0, 42.47}, tabulated{40.0, 73.85},
-                               tabulated{50.0, 123.5}, tabulated{60.0, 199.5}}) {
+  for (const tabulated& row :
+       {tabulated{0.0, 6.112}, tabulated{10.0, 12.28}, tabulated{20.0, 23.39}, tabulated{25.0, 31.70},
+        tabulated{30.0, 42.47}, tabulated{40.0, 73.85}, tabulated{50.0, 123.5}, tabulated{60.0, 199.5}}) {
     const auto e = saturation_vapour_pressure_hpa(row.t_c);
     ASSERT_TRUE(e.ok()) << row.t_c;
     EXPECT_NEAR(e.value(), row.e_hpa, 0.005 * row.e_hpa) << "t = " << row.t_c << " °C";
@@ -162,8 +162,8 @@ TEST(Psychro, HumidityRatioAtTwentyDegreesFiftyPercentIsAboutSevenPointThreeGram
   // ASHRAE Fundamentals 2017 ch. 1 eq. 20: W = 0.621945 p_w / (p − p_w). The expected value is
   // psychrolib's row for 20 °C, 50 % in the CSV (7.2617 g/kg), not a remembered number.
   const auto rows = read_psychrolib_csv();
-  const auto it = std::find_if(rows.begin(), rows.end(),
-                               [](const psychrolib_row& r) { return r.t_c == 20.0 && r.rh_pct == 50.0; });
+  const auto it =
+      std::find_if(rows.begin(), rows.end(), [](const psychrolib_row& r) { return r.t_c == 20.0 && r.rh_pct == 50.0; });
   ASSERT_NE(it, rows.end());
   const auto w = humidity_ratio_kg_per_kg(20.0, 50.0, 101.325);
   ASSERT_TRUE(w.ok());
@@ -260,8 +260,7 @@ TEST(Psychro, AlduchovEskridgeCoefficientsAgreeWithSonntagWithinATenthKelvin) {
       worst_k = std::max(worst_k, std::abs(a.value() - s.value()));
     }
   }
-  std::cout << "[ magnus ] Alduchov–Eskridge vs Sonntag dew point, 0–40 °C: largest difference " << worst_k
-            << " K\n";
+  std::cout << "[ magnus ] Alduchov–Eskridge vs Sonntag dew point, 0–40 °C: largest difference " << worst_k << " K\n";
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -271,12 +270,16 @@ constexpr double k_nan = std::numeric_limits<double>::quiet_NaN();
 constexpr double k_inf = std::numeric_limits<double>::infinity();
 
 struct dew_point_error_case {
+  const char* name;  // test-name suffix
   double t_c;
   double rh_pct;
   error_code expected;
 };
 
 class PsychroDewPointErrors : public ::testing::TestWithParam<dew_point_error_case> {};
+
+// gtest prints the case in ctest's test names: the name field, not a byte dump.
+void PrintTo(const dew_point_error_case& c, std::ostream* os) { *os << c.name; }
 
 TEST_P(PsychroDewPointErrors, NamesTheError) {
   const auto& c = GetParam();
@@ -288,17 +291,18 @@ TEST_P(PsychroDewPointErrors, NamesTheError) {
 
 INSTANTIATE_TEST_SUITE_P(
     BadInputs, PsychroDewPointErrors,
-    ::testing::Values(dew_point_error_case{20.0, 0.0, error_code::out_of_range},
-                      dew_point_error_case{20.0, -1.0, error_code::out_of_range},
-                      dew_point_error_case{20.0, 103.01, error_code::out_of_range},
-                      dew_point_error_case{20.0, 150.0, error_code::out_of_range},
-                      dew_point_error_case{20.0, k_nan, error_code::not_finite},
-                      dew_point_error_case{20.0, k_inf, error_code::not_finite},
-                      dew_point_error_case{20.0, -k_inf, error_code::not_finite},
-                      dew_point_error_case{-45.01, 50.0, error_code::out_of_range},
-                      dew_point_error_case{60.01, 50.0, error_code::out_of_range},
-                      dew_point_error_case{k_nan, 50.0, error_code::not_finite},
-                      dew_point_error_case{k_inf, 50.0, error_code::not_finite}));
+    ::testing::Values(dew_point_error_case{"rh_0", 20.0, 0.0, error_code::out_of_range},
+                      dew_point_error_case{"rh_minus_1", 20.0, -1.0, error_code::out_of_range},
+                      dew_point_error_case{"rh_103_01", 20.0, 103.01, error_code::out_of_range},
+                      dew_point_error_case{"rh_150", 20.0, 150.0, error_code::out_of_range},
+                      dew_point_error_case{"rh_nan", 20.0, k_nan, error_code::not_finite},
+                      dew_point_error_case{"rh_inf", 20.0, k_inf, error_code::not_finite},
+                      dew_point_error_case{"rh_minus_inf", 20.0, -k_inf, error_code::not_finite},
+                      dew_point_error_case{"t_minus_45_01", -45.01, 50.0, error_code::out_of_range},
+                      dew_point_error_case{"t_60_01", 60.01, 50.0, error_code::out_of_range},
+                      dew_point_error_case{"t_nan", k_nan, 50.0, error_code::not_finite},
+                      dew_point_error_case{"t_inf", k_inf, 50.0, error_code::not_finite}),
+    [](const ::testing::TestParamInfo<dew_point_error_case>& case_info) { return std::string(case_info.param.name); });
 
 TEST(Psychro, ClampsSensorOvershootUpToOneHundredAndThreePercent) {
   for (double rh_pct : {100.0, 100.5, 103.0}) {

@@ -1,7 +1,5 @@
 // Liquid-water properties against IAPWS-95 (IAPWS R6-95) as computed by the iapws Python package:
 // tests/data/reference/iapws95_water.csv, made by tests/reference/iapws/generate.py.
-#include "dewmargin/water_properties.h"
-
 #include <gtest/gtest.h>
 
 #include <cmath>
@@ -11,6 +9,8 @@
 #include <sstream>
 #include <string>
 #include <vector>
+
+#include "dewmargin/water_properties.h"
 
 namespace dewmargin::water {
 namespace {
@@ -90,8 +90,8 @@ TEST(WaterProperties, SpecificHeatAgreesWithIapws95WithinTwoTenthsOfAPercent) {
       worst_t_c = row.t_c;
     }
   }
-  std::cout << "[ iapws95 ] specific heat: " << rows.size() << " rows, largest relative deviation "
-            << worst * 100.0 << " % at " << worst_t_c << " °C\n";
+  std::cout << "[ iapws95 ] specific heat: " << rows.size() << " rows, largest relative deviation " << worst * 100.0
+            << " % at " << worst_t_c << " °C\n";
   RecordProperty("iapws95_cp_max_rel_dev_pct", std::to_string(worst * 100.0));
 }
 
@@ -115,11 +115,15 @@ TEST(WaterProperties, CoversZeroToSixtyInclusive) {
 }
 
 struct water_error_case {
+  const char* name;  // test-name suffix
   double t_c;
   error_code expected;
 };
 
 class WaterPropertiesErrors : public ::testing::TestWithParam<water_error_case> {};
+
+// gtest prints the case in ctest's test names: the name field, not a byte dump.
+void PrintTo(const water_error_case& c, std::ostream* os) { *os << c.name; }
 
 TEST_P(WaterPropertiesErrors, RejectOutsideTheRange) {
   const auto& c = GetParam();
@@ -131,16 +135,16 @@ TEST_P(WaterPropertiesErrors, RejectOutsideTheRange) {
   EXPECT_EQ(cp.err().code, c.expected) << cp.err().message;
 }
 
-INSTANTIATE_TEST_SUITE_P(BadTemperatures, WaterPropertiesErrors,
-                         ::testing::Values(water_error_case{-0.01, error_code::out_of_range},
-                                           water_error_case{60.01, error_code::out_of_range},
-                                           water_error_case{100.0, error_code::out_of_range},
-                                           water_error_case{std::numeric_limits<double>::quiet_NaN(),
-                                                            error_code::not_finite},
-                                           water_error_case{std::numeric_limits<double>::infinity(),
-                                                            error_code::not_finite},
-                                           water_error_case{-std::numeric_limits<double>::infinity(),
-                                                            error_code::not_finite}));
+INSTANTIATE_TEST_SUITE_P(
+    BadTemperatures, WaterPropertiesErrors,
+    ::testing::Values(water_error_case{"t_minus_0_01", -0.01, error_code::out_of_range},
+                      water_error_case{"t_60_01", 60.01, error_code::out_of_range},
+                      water_error_case{"t_100", 100.0, error_code::out_of_range},
+                      water_error_case{"t_nan", std::numeric_limits<double>::quiet_NaN(), error_code::not_finite},
+                      water_error_case{"t_inf", std::numeric_limits<double>::infinity(), error_code::not_finite},
+                      water_error_case{"t_minus_inf", -std::numeric_limits<double>::infinity(),
+                                       error_code::not_finite}),
+    [](const ::testing::TestParamInfo<water_error_case>& case_info) { return std::string(case_info.param.name); });
 
 }  // namespace
 }  // namespace dewmargin::water

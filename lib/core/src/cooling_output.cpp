@@ -39,7 +39,7 @@ result<double> loop_cooling_kw(double supply_c, double return_c, double flow_l_s
   auto cp = water::specific_heat_kj_kg_k(mean_c);
   if (!cp) return cp.err();
   const double mass_flow_kg_s = rho.value() * flow_l_s / 1000.0;  // L → m³
-  return mass_flow_kg_s * cp.value() * (return_c - supply_c);      // kg/s · kJ/(kg·K) · K = kW
+  return mass_flow_kg_s * cp.value() * (return_c - supply_c);     // kg/s · kJ/(kg·K) · K = kW
 }
 
 }  // namespace dewmargin
