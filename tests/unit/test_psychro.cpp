@@ -248,7 +248,7 @@ TEST(Psychro, DewPointFromVapourPressureInvertsSaturationPressure) {
 
 TEST(Psychro, AlduchovEskridgeCoefficientsAgreeWithSonntagWithinATenthKelvin) {
   // Alduchov & Eskridge (1996), J. Appl. Meteor. 35, 601–609 (AERK: 6.1094, 17.625, 243.04 °C)
-  // against Sonntag (1990), Z. Meteorol. 40, 340–344, as given in WMO-No. 8 Annex 4.B
+  // against Sonntag (1990), Z. Meteorol. 40, 340–344 (citation from memory), as given in WMO-No. 8 Annex 4.B
   // (6.112, 17.62, 243.12 °C). Both are fits to the same saturation curve over water.
   double worst_k = 0.0;
   for (double t_c : temperatures_c(0.0, 40.0, 1.0)) {
