@@ -1,5 +1,6 @@
 #include "dewmargin/psychro.h"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <string>
@@ -49,7 +50,9 @@ result<double> dew_point_c(double t_c, double rh_pct, const magnus_coefficients&
   if (!rh) return rh.err();
   // ln(e/c) = ln(RH/100) + a·T/(b+T): avoids computing e_s and dividing it out again.
   const double ln_ratio = std::log(rh.value() / 100.0) + k.a * t_c / (k.b_c + t_c);
-  return magnus_inverse_c(ln_ratio, k);
+  // At 100 % the inverse can land one rounding step above T, which relative_humidity_pct (and
+  // any margin built on it) would treat as supersaturation: the dew point never exceeds T.
+  return std::min(magnus_inverse_c(ln_ratio, k), t_c);
 }
 
 result<double> relative_humidity_pct(double t_c, double dew_point_c, const magnus_coefficients& k) {
@@ -83,7 +86,8 @@ result<double> dew_point_from_vapour_pressure_c(double e_hpa, const magnus_coeff
 }
 
 result<double> humidity_ratio_kg_per_kg(double t_c, double rh_pct, double pressure_kpa, const magnus_coefficients& k) {
-  if (!std::isfinite(pressure_kpa) || pressure_kpa <= 0.0) {
+  if (!std::isfinite(pressure_kpa)) return make_error(error_code::not_finite, "pressure is not a finite number");
+  if (pressure_kpa <= 0.0) {
     return make_error(error_code::invalid_argument, format_value("pressure", pressure_kpa) + " kPa must be above 0");
   }
   auto es = saturation_vapour_pressure_hpa(t_c, k);

@@ -31,7 +31,7 @@ result<double> normalise_rh_pct(double rh_pct);
 // Saturation vapour pressure over water [hPa] at air temperature t_c.
 result<double> saturation_vapour_pressure_hpa(double t_c, const magnus_coefficients& k = k_sonntag_1990);
 
-// Dew point [°C] from air temperature [°C] and relative humidity [%].
+// Dew point [°C] from air temperature [°C] and relative humidity [%]; never above t_c.
 result<double> dew_point_c(double t_c, double rh_pct, const magnus_coefficients& k = k_sonntag_1990);
 
 // Relative humidity [%] from air temperature and dew point. A dew point above the
