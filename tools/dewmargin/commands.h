@@ -23,4 +23,14 @@ int run_dewpoint(const dewpoint_options& options, std::ostream& out, std::ostrea
 // Validates a config file and prints a summary of zones, loops and inputs.
 int run_check(const std::string& file, std::ostream& out, std::ostream& err);
 
+struct replay_options {
+  std::string config_file;
+  std::string readings_file;
+  bool states = false;
+  std::string start = "1970-01-01T00:00:00Z";  // origin of `ts` given as seconds
+  double tail_s = 0.0;                          // simulated seconds to run past the last reading
+};
+// Runs readings through the decision core on simulated time; prints events (and states).
+int run_replay(const replay_options& options, std::ostream& out, std::ostream& err);
+
 }  // namespace dewmargin::cli

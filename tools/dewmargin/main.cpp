@@ -22,7 +22,8 @@ int main(int argc, char** argv) {
   CLI::App app{"dewmargin: dew-point supervision of chilled radiant surfaces (operator command line)"};
   app.footer(std::string("\nExamples:\n"
                          "  dewmargin dewpoint --temp 24 --rh 50\n"
-                         "  dewmargin check /etc/dewmargin/dewmargin.yaml\n\n") +
+                         "  dewmargin check /etc/dewmargin/dewmargin.yaml\n"
+                         "  dewmargin replay --config site.yaml --readings readings.csv\n\n") +
              k_caution);
   app.require_subcommand(1);
   app.set_version_flag("--version", "dewmargin 0.1.0");
@@ -47,6 +48,21 @@ int main(int argc, char** argv) {
   check->add_option("FILE", check_file, "Config file (YAML)")->required();
   check->footer(std::string("\nExample:\n  dewmargin check config/example.yaml\n\n") + k_caution);
   check->callback([&] { exit_code = run_check(check_file, std::cout, std::cerr); });
+
+  replay_options rp;
+  auto* replay = app.add_subcommand(
+      "replay", "Run recorded readings through the rules on simulated time and print what would be published");
+  replay->add_option("--config", rp.config_file, "Config file (YAML)")->required();
+  replay->add_option("--readings", rp.readings_file, "CSV file with columns ts,topic,payload")->required();
+  replay->add_flag("--states", rp.states, "Also print every zone and loop state");
+  replay->add_option("--start", rp.start, "Origin of ts given as seconds (ISO 8601; default 1970-01-01T00:00:00Z)");
+  replay->add_option("--tail-s", rp.tail_s, "Simulated seconds to keep ticking after the last reading")
+      ->check(CLI::Range(0.0, 86400.0 * 31));
+  replay->footer(std::string("\nExample:\n  dewmargin replay --config config/example.yaml --readings day.csv --states\n\n"
+                             "ts is ISO 8601 or seconds from --start; payload is quoted per RFC 4180 when it\n"
+                             "holds commas or quotes. Lines starting with # are comments.\n\n") +
+                 k_caution);
+  replay->callback([&] { exit_code = run_replay(rp, std::cout, std::cerr); });
 
   try {
     app.parse(argc, argv);

@@ -1,0 +1,39 @@
+#pragma once
+// Time to condensation: the least-squares slope of a zone's margin over a window,
+// extrapolated to zero. Samples are thinned to one per window/60 so that memory and
+// work stay bounded however often a sensor reports.
+#include <array>
+#include <cstddef>
+#include <cstdint>
+#include <optional>
+
+#include "dewmargin/timestamp.h"
+
+namespace dewmargin {
+
+class margin_trend {
+ public:
+  static constexpr std::size_t k_capacity = 64;
+
+  explicit margin_trend(double window_s) : window_s_(window_s), spacing_s_(window_s / 60.0) {}
+
+  void add(timestamp t, double margin_k);
+  void clear() { count_ = 0; }
+
+  // Minutes until the margin reaches zero at the current rate of fall; 0 when it is
+  // already at or below zero; empty when it is not falling or data span too little.
+  [[nodiscard]] std::optional<double> minutes_to_condensation(timestamp now) const;
+
+ private:
+  struct point {
+    std::int64_t t_ms;
+    double margin_k;
+  };
+  double window_s_;
+  double spacing_s_;
+  std::array<point, k_capacity> ring_{};
+  std::size_t head_ = 0;   // index of the next write
+  std::size_t count_ = 0;
+};
+
+}  // namespace dewmargin

@@ -1,0 +1,65 @@
+#include "dewmargin/margin_trend.h"
+
+#include <algorithm>
+#include <cstdint>
+
+namespace dewmargin {
+namespace {
+// Too little data: fewer points than this, or spanning less than a fifth of the window.
+constexpr std::size_t k_min_points = 4;
+constexpr double k_min_span_fraction = 0.2;
+// Slower falls than this (K/s, about 0.006 K/min) count as "not falling".
+constexpr double k_min_fall_k_per_s = 1e-4;
+}  // namespace
+
+void margin_trend::add(timestamp t, double margin_k) {
+  const std::int64_t t_ms = to_unix_ms(t);
+  const auto spacing_ms = std::max<std::int64_t>(1, static_cast<std::int64_t>(spacing_s_ * 1000.0));
+  if (count_ > 0) {
+    point& last = ring_[(head_ + k_capacity - 1) % k_capacity];
+    if (t_ms < last.t_ms) return;  // out of order: ignore
+    // One point per spacing bucket, the latest reading of the bucket.
+    if (t_ms / spacing_ms == last.t_ms / spacing_ms) {
+      last = point{t_ms, margin_k};
+      return;
+    }
+  }
+  ring_[head_] = point{t_ms, margin_k};
+  head_ = (head_ + 1) % k_capacity;
+  if (count_ < k_capacity) ++count_;
+}
+
+std::optional<double> margin_trend::minutes_to_condensation(timestamp now) const {
+  if (count_ == 0) return std::nullopt;
+  const std::int64_t now_ms = to_unix_ms(now);
+  const auto window_ms = static_cast<std::int64_t>(window_s_ * 1000.0);
+  const point& newest = ring_[(head_ + k_capacity - 1) % k_capacity];
+  if (newest.margin_k <= 0.0) return 0.0;
+
+  // Least squares over the points inside the window, times relative to `now` in seconds.
+  double n = 0, sum_t = 0, sum_m = 0, sum_tt = 0, sum_tm = 0;
+  std::int64_t oldest_ms = now_ms;
+  for (std::size_t i = 0; i < count_; ++i) {
+    const point& p = ring_[(head_ + k_capacity - 1 - i) % k_capacity];
+    if (now_ms - p.t_ms > window_ms) break;
+    const double t = static_cast<double>(p.t_ms - now_ms) / 1000.0;
+    n += 1;
+    sum_t += t;
+    sum_m += p.margin_k;
+    sum_tt += t * t;
+    sum_tm += t * p.margin_k;
+    oldest_ms = p.t_ms;
+  }
+  if (n < static_cast<double>(k_min_points)) return std::nullopt;
+  if (static_cast<double>(newest.t_ms - oldest_ms) < k_min_span_fraction * window_s_ * 1000.0) return std::nullopt;
+  const double denom = n * sum_tt - sum_t * sum_t;
+  if (denom <= 0.0) return std::nullopt;
+  const double slope_k_per_s = (n * sum_tm - sum_t * sum_m) / denom;
+  if (slope_k_per_s > -k_min_fall_k_per_s) return std::nullopt;
+  // Extrapolate from the fitted value at `now` rather than the last noisy reading.
+  const double fitted_now = (sum_m - slope_k_per_s * sum_t) / n;
+  if (fitted_now <= 0.0) return 0.0;
+  return fitted_now / -slope_k_per_s / 60.0;
+}
+
+}  // namespace dewmargin

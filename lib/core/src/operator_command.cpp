@@ -1,0 +1,83 @@
+#include "dewmargin/operator_command.h"
+
+#include <cmath>
+#include <nlohmann/json.hpp>
+
+#include "dewmargin/zone_alarm.h"
+
+namespace dewmargin {
+namespace {
+
+constexpr std::size_t k_max_text = 200;  // by / note / reason are free text, but bounded
+
+result<std::string> optional_text(const nlohmann::json& doc, const char* key) {
+  if (!doc.contains(key) || doc[key].is_null()) return std::string{};
+  if (!doc[key].is_string()) return make_error(error_code::parse_error, std::string("'") + key + "' must be a string");
+  std::string s = doc[key].get<std::string>();
+  if (s.size() > k_max_text) s.resize(k_max_text);
+  return s;
+}
+
+}  // namespace
+
+const char* command_verb_name(command_verb v) {
+  switch (v) {
+    case command_verb::ack: return "ack";
+    case command_verb::shelve: return "shelve";
+    case command_verb::unshelve: return "unshelve";
+  }
+  return "ack";
+}
+
+result<operator_command> parse_operator_command(std::string_view verb_text, std::string_view payload,
+                                                std::string& zone_out) {
+  operator_command cmd;
+  if (verb_text == "ack") {
+    cmd.verb = command_verb::ack;
+  } else if (verb_text == "shelve") {
+    cmd.verb = command_verb::shelve;
+  } else if (verb_text == "unshelve") {
+    cmd.verb = command_verb::unshelve;
+  } else {
+    return make_error(error_code::invalid_argument,
+                      "unknown command '" + std::string(verb_text.substr(0, 40)) + "' (ack, shelve, unshelve)");
+  }
+
+  const nlohmann::json doc = nlohmann::json::parse(payload.begin(), payload.end(), nullptr, false);
+  if (doc.is_discarded()) return make_error(error_code::parse_error, "payload is not valid JSON");
+  if (!doc.is_object()) return make_error(error_code::parse_error, "payload must be a JSON object");
+
+  if (doc.contains("zone") && doc["zone"].is_string()) zone_out = doc["zone"].get<std::string>().substr(0, k_max_text);
+  if (!doc.contains("zone") || doc["zone"].is_null()) return make_error(error_code::invalid_argument, "missing 'zone'");
+  if (!doc["zone"].is_string()) return make_error(error_code::parse_error, "'zone' must be a string");
+  cmd.zone = zone_out;
+
+  auto by = optional_text(doc, "by");
+  if (!by) return by.err();
+  if (by.value().empty()) return make_error(error_code::invalid_argument, "missing 'by' (who gives the command)");
+  cmd.by = by.value();
+
+  auto note = optional_text(doc, "note");
+  if (!note) return note.err();
+  cmd.note = note.value();
+  auto reason = optional_text(doc, "reason");
+  if (!reason) return reason.err();
+  cmd.reason = reason.value();
+
+  if (cmd.verb == command_verb::shelve) {
+    if (!doc.contains("minutes") || doc["minutes"].is_null()) {
+      return make_error(error_code::invalid_argument, "missing 'minutes' (1 to 1440)");
+    }
+    const auto& m = doc["minutes"];
+    if (!m.is_number()) return make_error(error_code::parse_error, "'minutes' must be a number (1 to 1440)");
+    const double minutes = m.get<double>();
+    if (!std::isfinite(minutes) || minutes != std::floor(minutes) || minutes < k_min_shelve_minutes ||
+        minutes > k_max_shelve_minutes) {
+      return make_error(error_code::out_of_range, "'minutes' must be a whole number from 1 to 1440");
+    }
+    cmd.minutes = static_cast<int>(minutes);
+  }
+  return cmd;
+}
+
+}  // namespace dewmargin
