@@ -163,7 +163,9 @@ struct engine::state {
     s.cfg = &ic;
     s.owner_is_loop = owner_is_loop;
     s.owner = owner;
-    s.stale_after_s = ic.stale_after_s.value_or(default_stale_s);
+    // Switches and contacts usually report only on change: never stale unless their own
+    // stale_after_s says otherwise.
+    s.stale_after_s = ic.stale_after_s.value_or(is_switch_kind(kind) ? 0.0 : default_stale_s);
     slots.push_back(std::move(s));
     const std::size_t id = slots.size() - 1;
     slots_by_topic[ic.topic].push_back(id);
@@ -771,6 +773,17 @@ void engine::adopt(const engine& previous, timestamp now, engine_output& out) {
   for (zone_rt& z : s_->zones) {
     const auto it = p.zone_index.find(z.cfg->id);
     if (it != p.zone_index.end()) z.bands.force(p.zones[it->second].bands.current());
+  }
+  for (loop_rt& l : s_->loops) {
+    for (const loop_rt& old : p.loops) {
+      if (old.cfg->id == l.cfg->id) l.published_bare = old.published_bare;
+    }
+  }
+  // What the plant was last told stays the reference for the 0.1 K republish rule.
+  for (dehumidifier_rt& d : s_->dehumidifiers) {
+    for (const dehumidifier_rt& old : p.dehumidifiers) {
+      if (old.cfg->id == d.cfg->id) d.published_request_c = old.published_request_c;
+    }
   }
   s_->publish_all(now, out);
 }
