@@ -536,6 +536,29 @@ TEST(Engine, MinuteSamplesSummariseEachZone) {
   EXPECT_EQ(z1->worst_band, "safe");
 }
 
+TEST(Engine, IgnoresRetainedMeasurementsAndCommandsButTakesRetainedSwitches) {
+  engine_driver d(small_site());
+  d.readings(24, 50, 17, 16);
+  d.send("b/z1/surface", "12.5");
+  engine_output out;
+  d.core().on_message("dm/cmd/ack", R"({"zone":"z1","by":"old"})", d.now(), out, true);
+  d.core().on_message("b/z1/surface", "20", d.now(), out, true);
+  EXPECT_TRUE(out.messages.empty());  // neither acknowledged nor back to safe
+  EXPECT_EQ(d.core().counters().retained_ignored, 2u);
+
+  engine_driver fresh(small_site());
+  fresh.readings(24, 50, 17, 16);
+  ASSERT_EQ(fresh.last_payload("b/z1/valve"), "open");
+  out.clear();
+  fresh.core().on_message("b/z1/window", "open", fresh.now(), out, true);
+  std::string valve_payload;
+  for (const auto& m : out.messages) {
+    if (m.topic == "b/z1/valve") valve_payload = m.payload;
+  }
+  EXPECT_EQ(valve_payload, "closed");
+  EXPECT_EQ(fresh.core().counters().retained_ignored, 0u);
+}
+
 TEST(Engine, SubscribesToEveryInputAndCommands) {
   engine e(small_site());
   const auto subs = e.subscriptions();

@@ -788,12 +788,17 @@ void engine::adopt(const engine& previous, timestamp now, engine_output& out) {
   s_->publish_all(now, out);
 }
 
-void engine::on_message(const std::string& topic, std::string_view payload, timestamp now, engine_output& out) {
+void engine::on_message(const std::string& topic, std::string_view payload, timestamp now, engine_output& out,
+                        bool retained) {
   state& s = *s_;
   ++s.counters.messages;
   const timestamp reading_ts = now;
   now = s.advance(now);
   if (topic.compare(0, s.cmd_prefix.size(), s.cmd_prefix) == 0) {
+    if (retained) {
+      ++s.counters.retained_ignored;
+      return;
+    }
     s.on_command(topic, payload, now, out);
     return;
   }
@@ -802,7 +807,16 @@ void engine::on_message(const std::string& topic, std::string_view payload, time
     ++s.counters.unrouted;
     return;
   }
-  s.on_reading(it->second, payload, reading_ts, now, out);
+  if (!retained) {
+    s.on_reading(it->second, payload, reading_ts, now, out);
+    return;
+  }
+  std::vector<std::size_t> switches;
+  for (std::size_t id : it->second) {
+    if (is_switch_kind(s.slots[id].kind)) switches.push_back(id);
+  }
+  if (switches.size() != it->second.size()) ++s.counters.retained_ignored;
+  if (!switches.empty()) s.on_reading(switches, payload, reading_ts, now, out);
 }
 
 void engine::tick(timestamp now, engine_output& out) { s_->tick(s_->advance(now), out); }

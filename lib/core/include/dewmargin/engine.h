@@ -25,6 +25,7 @@ struct engine_counters {
   std::uint64_t commands = 0;        // operator commands accepted
   std::uint64_t rejected = 0;        // operator commands rejected
   std::uint64_t unrouted = 0;        // messages on a topic no input uses
+  std::uint64_t retained_ignored = 0; // retained measurements and commands (age unknown)
 };
 
 class engine {
@@ -39,7 +40,12 @@ class engine {
   void begin(timestamp now, const restored_state& restored, engine_output& out);
 
   // A reading or an operator command. Outputs are appended to `out`.
-  void on_message(const std::string& topic, std::string_view payload, timestamp now, engine_output& out);
+  // `retained`: the broker delivered it from its retained store, so its age is unknown.
+  // Retained measurements and commands are ignored (a stored value must not pass for a
+  // fresh one, an old command must not act again); retained switch and contact states
+  // are taken, since such devices often publish only on change.
+  void on_message(const std::string& topic, std::string_view payload, timestamp now, engine_output& out,
+                  bool retained = false);
 
   // Once a second: staleness, confirm timers, shelving expiry, reset ramps, deferred
   // state publications, per-minute samples.
