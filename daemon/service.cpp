@@ -1,0 +1,275 @@
+#include "service.h"
+
+#include <chrono>
+#include <nlohmann/json.hpp>
+#include <string>
+#include <thread>
+#include <vector>
+
+#include "dewmargin/config_loader.h"
+#include "dewmargin/engine.h"
+#include "dewmargin/mqtt_link.h"
+#include "dewmargin/store_writer.h"
+#include "logging.h"
+#include "signals.h"
+#include "systemd_notify.h"
+
+namespace dewmargin::daemon {
+namespace {
+
+constexpr const char* k_version = "0.1.0";
+constexpr auto k_tick = std::chrono::seconds(1);
+constexpr auto k_max_wait = std::chrono::milliseconds(200);  // signal and watchdog latency
+constexpr int k_burst = 256;
+constexpr auto k_store_retry = std::chrono::seconds(60);
+constexpr auto k_stop_store_timeout = std::chrono::milliseconds(2000);
+constexpr auto k_stop_link_timeout = std::chrono::milliseconds(2000);
+
+timestamp wall_now() {
+  return std::chrono::time_point_cast<std::chrono::milliseconds>(std::chrono::system_clock::now());
+}
+
+std::string status_payload(const site_config& cfg, const char* state, const std::string& reason) {
+  nlohmann::json j;
+  j["state"] = state;
+  j["site"] = cfg.site;
+  j["version"] = k_version;
+  j["ts"] = format_iso8601_utc(wall_now());
+  if (!reason.empty()) j["reason"] = reason;
+  return j.dump();
+}
+
+std::string describe_event(const event_record& e) {
+  std::string subject = subject_type_name(e.subject);
+  if (!e.subject_id.empty()) subject += " " + e.subject_id;
+  return e.kind + " " + subject + ": " + e.json;
+}
+
+// Owns the pieces and runs the loop; members are declared in start-up order.
+class service {
+ public:
+  service(const service_options& o, std::shared_ptr<spdlog::logger> log)
+      : options_(o), log_(std::move(log)), problems_(log_, std::chrono::seconds(10)) {}
+
+  int run() {
+    auto loaded = load_config_file(options_.config_path);
+    if (!loaded.ok()) {
+      for (const auto& d : loaded.errors) log_->error("{}", d.to_string());
+      return 2;
+    }
+    if (!apply_log_level(*loaded.config)) return 2;
+    core_ = std::make_unique<engine>(std::move(*loaded.config));
+    const site_config& cfg = core_->config();
+    log_->info("dewmargind {} starting: site {}, {} zones, {} loops, broker {}", k_version, cfg.site,
+               cfg.zones.size(), cfg.loops.size(), cfg.broker.uri);
+
+    open_store();
+    restored_state restored;
+    if (store_) {
+      auto r = store_->load_restored_state();
+      if (r) {
+        restored = std::move(r.value());
+        log_->info("restored {} zone and {} loop states from {}", restored.zones.size(), restored.loops.size(),
+                   cfg.storage.path);
+      } else {
+        log_->error("{}; starting without restored state", r.err().message);
+      }
+    }
+
+    auto link = mqtt_link::create(link_options(cfg));
+    if (!link) {
+      log_->error("{}", link.err().message);
+      if (store_) store_->stop();
+      return 1;
+    }
+    link_ = std::make_unique<mqtt_link>(std::move(link.value()));
+
+    // Restored alarms and setpoints go out before any new reading is evaluated.
+    const timestamp now = wall_now();
+    core_->begin(now, restored, batch_);
+    core_->service_event(now, "stopped", "running", std::string("started, version ") + k_version, batch_);
+    dispatch();
+    link_->start();
+    notifier_.status("connecting to " + cfg.broker.uri);
+
+    loop();
+    shut_down();
+    return 0;
+  }
+
+ private:
+  bool apply_log_level(const site_config& cfg) {
+    const std::string level_text = options_.log_level.value_or(cfg.logging.level);
+    spdlog::level::level_enum level{};
+    if (!parse_log_level(level_text, level)) {
+      log_->error("{}: logging.level '{}' is not one of trace, debug, info, warn, error, critical, off",
+                  options_.config_path.string(), level_text);
+      return false;
+    }
+    log_->set_level(level);
+    return true;
+  }
+
+  mqtt_link_options link_options(const site_config& cfg) {
+    mqtt_link_options o;
+    o.broker = cfg.broker;
+    o.status_topic = core_->status_topic();
+    o.online_payload = status_payload(cfg, "online", "");
+    o.offline_will_payload = status_payload(cfg, "offline", "connection lost");
+    o.subscriptions = core_->subscriptions();
+    o.must_keep_prefixes = {core_->command_prefix()};
+    o.report = [this](link_report_level level, const std::string& message) {
+      const auto l = level == link_report_level::error     ? spdlog::level::err
+                     : level == link_report_level::warning ? spdlog::level::warn
+                                                           : spdlog::level::info;
+      problems_.report(l, "mqtt: " + message);
+    };
+    return o;
+  }
+
+  void open_store() {
+    last_store_attempt_ = std::chrono::steady_clock::now();
+    auto opts = store_writer_options_from(core_->config().storage);
+    opts.report_error = [this](const std::string& message) { problems_.report(spdlog::level::err, message); };
+    auto opened = store_writer::open(std::move(opts));
+    if (!opened) {
+      // Supervision matters more than history: go on without the disk, retry later.
+      problems_.report(spdlog::level::err,
+                       opened.err().message + "; running without history, retrying every 60 s");
+      return;
+    }
+    store_ = std::make_unique<store_writer>(std::move(opened.value()));
+  }
+
+  // Publish first: the outbox takes messages without waiting, the store only copies rows,
+  // so neither a slow disk nor a slow broker delays the other.
+  void dispatch() {
+    for (const auto& e : batch_.events) {
+      const bool warn = e.kind == "rejected";
+      log_->log(warn ? spdlog::level::warn : spdlog::level::info, "{}", describe_event(e));
+    }
+    for (auto& m : batch_.messages) link_publish(std::move(m));
+    if (store_) store_->enqueue(batch_);
+    batch_.clear();
+  }
+
+  void link_publish(outbound_message m) {
+    if (link_) link_->publish(std::move(m));
+  }
+
+  void loop() {
+    auto next_tick = std::chrono::steady_clock::now() + k_tick;
+    bool announced_ready = false;
+    inbound_message msg;
+    for (;;) {
+      const auto steady = std::chrono::steady_clock::now();
+      const auto wait = std::min<std::chrono::steady_clock::duration>(
+          k_max_wait, std::max<std::chrono::steady_clock::duration>(next_tick - steady, std::chrono::milliseconds(0)));
+      if (link_->next_message(msg, std::chrono::duration_cast<std::chrono::milliseconds>(wait))) {
+        handle(msg);
+        // A burst is taken without waiting, and without the per-pass checks below.
+        for (int i = 0; i < k_burst && link_->next_message(msg, std::chrono::milliseconds(0)); ++i) handle(msg);
+      }
+      const auto after = std::chrono::steady_clock::now();
+      if (after >= next_tick) {
+        core_->tick(wall_now(), batch_);
+        dispatch();
+        next_tick += k_tick;
+        // After a stall (suspend, debugger) do not replay the missed ticks one by one.
+        if (after - next_tick > std::chrono::seconds(5)) next_tick = after + k_tick;
+        if (!store_ && after - last_store_attempt_ >= k_store_retry) open_store();
+      }
+      if (!announced_ready && link_->ready()) {
+        announced_ready = true;
+        notifier_.ready("connected to " + core_->config().broker.uri + ", supervising " +
+                        std::to_string(core_->config().zones.size()) + " zones");
+        log_->info("connected and subscribed to {} topics", core_->subscriptions().size());
+      }
+      notifier_.keep_alive(after);
+      switch (signals_.poll()) {
+        case signal_request::none: break;
+        case signal_request::reload: reload(); break;
+        case signal_request::stop: return;
+      }
+    }
+  }
+
+  // Each message's outputs go out before the next message is taken (alarm latency).
+  void handle(const inbound_message& msg) {
+    core_->on_message(msg.topic, msg.payload, wall_now(), batch_, msg.retained);
+    if (!batch_.empty()) dispatch();
+  }
+
+  void reload() {
+    notifier_.reloading();
+    log_->info("SIGHUP: reloading {}", options_.config_path.string());
+    auto loaded = load_config_file(options_.config_path);
+    const timestamp now = wall_now();
+    if (!loaded.ok()) {
+      for (const auto& d : loaded.errors) log_->error("{}", d.to_string());
+      const std::string first = loaded.errors.empty() ? std::string("unknown error") : loaded.errors.front().to_string();
+      core_->service_event(now, "running", "running",
+                           "reload rejected (" + std::to_string(loaded.errors.size()) + " errors; first: " + first +
+                               "); the previous config stays in force",
+                           batch_);
+      dispatch();
+      notifier_.ready("reload rejected; previous config in force");
+      return;
+    }
+    const site_config& old_cfg = core_->config();
+    const site_config& new_cfg = *loaded.config;
+    if (new_cfg.broker.uri != old_cfg.broker.uri || new_cfg.broker.client_id != old_cfg.broker.client_id ||
+        new_cfg.broker.username != old_cfg.broker.username ||
+        new_cfg.broker.password_file != old_cfg.broker.password_file || new_cfg.storage.path != old_cfg.storage.path ||
+        new_cfg.publish.prefix != old_cfg.publish.prefix) {
+      log_->warn("broker, storage or publish.prefix settings changed: they take effect at the next restart");
+    }
+    auto fresh = std::make_unique<engine>(std::move(*loaded.config));
+    if (fresh->subscriptions() != core_->subscriptions()) {
+      log_->warn("input topics changed: they take effect at the next restart (subscriptions are kept)");
+    }
+    if (!apply_log_level(fresh->config())) log_->warn("logging level unchanged");
+    fresh->adopt(*core_, now, batch_);
+    core_ = std::move(fresh);
+    core_->service_event(now, "running", "running", "config reloaded", batch_);
+    dispatch();
+    notifier_.ready("config reloaded");
+  }
+
+  void shut_down() {
+    notifier_.stopping();
+    const timestamp now = wall_now();
+    core_->flush(now, batch_);
+    core_->service_event(now, "running", "stopped", "stop requested by signal", batch_);
+    dispatch();
+    if (store_) {
+      if (!store_->flush(k_stop_store_timeout)) log_->error("history: not every row was written before stopping");
+      store_->stop(std::chrono::milliseconds(500));
+    }
+    link_->shutdown(status_payload(core_->config(), "offline", "stopped"), k_stop_link_timeout);
+    const auto st = link_->stats();
+    log_->info("stopped: {} messages received, {} delivered, {} outbox drops", st.received, st.delivered,
+               st.dropped_outbox_of(message_class::event) + st.dropped_outbox_of(message_class::alarm_event) +
+                   st.dropped_outbox_of(message_class::state) + st.dropped_outbox_of(message_class::command));
+  }
+
+  service_options options_;
+  std::shared_ptr<spdlog::logger> log_;
+  problem_reporter problems_;
+  signal_inbox signals_;  // before any thread is started
+  systemd_notifier notifier_;
+  std::unique_ptr<engine> core_;
+  std::unique_ptr<store_writer> store_;
+  std::unique_ptr<mqtt_link> link_;
+  std::chrono::steady_clock::time_point last_store_attempt_{};
+  engine_output batch_;
+};
+
+}  // namespace
+
+int run_service(const service_options& options, const std::shared_ptr<spdlog::logger>& log) {
+  service s(options, log);
+  return s.run();
+}
+
+}  // namespace dewmargin::daemon
