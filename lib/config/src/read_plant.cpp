@@ -10,9 +10,9 @@ namespace {
 // Looks by iterating: yaml-cpp's operator[] on a missing key yields a node whose
 // accessors throw.
 std::string entity_context(const YAML::Node& item, const char* what, int index) {
-  for (auto it = item.begin(); it != item.end(); ++it) {
-    if (it->first.IsScalar() && it->first.Scalar() == "id" && it->second.IsScalar() && !it->second.Scalar().empty()) {
-      return std::string(what) + " '" + it->second.Scalar() + "'";
+  for (const auto& kv : item) {
+    if (kv.first.IsScalar() && kv.first.Scalar() == "id" && kv.second.IsScalar() && !kv.second.Scalar().empty()) {
+      return std::string(what) + " '" + kv.second.Scalar() + "'";
     }
   }
   return std::string(what) + " #" + std::to_string(index);

@@ -81,8 +81,10 @@ map_reader::map_reader(const YAML::Node& node, std::string context, const std::v
                        diagnostics& diag)
     : context_(std::move(context)), mark_(mark_of(node)), diag_(diag) {
   const std::string where = context_.empty() ? "at the top level" : "in " + context_;
-  for (auto it = node.begin(); it != node.end(); ++it) {
-    const YAML::Node& k = it->first;
+  // Range-for keeps yaml-cpp's by-value iterator element alive; `it->first` on its
+  // proxy draws GCC 12's dangling-pointer warning.
+  for (const auto& kv : node) {
+    const YAML::Node& k = kv.first;
     const source_mark at = mark_of(k);
     if (!k.IsScalar()) {
       diag_.error(at, "keys must be plain words, got " + describe(k) + " " + where);
@@ -111,7 +113,7 @@ map_reader::map_reader(const YAML::Node& node, std::string context, const std::v
       diag_.error(at, std::move(message));
       continue;
     }
-    entries_.push_back({name, k, it->second});
+    entries_.push_back({name, k, kv.second});
   }
 }
 
