@@ -1,5 +1,3 @@
-#include "dewmargin/config_loader.h"
-
 #include <gtest/gtest.h>
 
 #include <algorithm>
@@ -8,6 +6,8 @@
 #include <regex>
 #include <string>
 #include <vector>
+
+#include "dewmargin/config_loader.h"
 
 namespace dewmargin {
 namespace {
@@ -33,7 +33,8 @@ std::string all_errors(const config_load_result& r) {
 
 std::string name_of_file(const ::testing::TestParamInfo<std::string>& info) {
   std::string n = fs::path(info.param).stem().string();
-  std::replace_if(n.begin(), n.end(), [](char c) { return !std::isalnum(static_cast<unsigned char>(c)); }, '_');
+  std::replace_if(
+      n.begin(), n.end(), [](char c) { return !std::isalnum(static_cast<unsigned char>(c)); }, '_');
   return n;
 }
 
@@ -342,47 +343,56 @@ const text_case k_rule_cases[] = {
     {"password_file_without_username",
      "site: s\nbroker: {uri: tcp://h, client_id: c, password_file: pw}\nstorage: {path: p.db}\n" + k_loop + k_zone, 2,
      38, "'password_file' needs a 'username'"},
-    {"uri_without_host", "site: s\nbroker: {uri: 'mqtt://:1883', client_id: c}\nstorage: {path: p.db}\n" + k_loop + k_zone,
-     2, 15, "must name a host"},
+    {"uri_without_host",
+     "site: s\nbroker: {uri: 'mqtt://:1883', client_id: c}\nstorage: {path: p.db}\n" + k_loop + k_zone, 2, 15,
+     "must name a host"},
     {"uri_bad_port", "site: s\nbroker: {uri: 'tcp://h:0', client_id: c}\nstorage: {path: p.db}\n" + k_loop + k_zone, 2,
      15, "has a bad port '0'"},
     {"client_id_empty", "site: s\nbroker: {uri: tcp://h, client_id: ''}\nstorage: {path: p.db}\n" + k_loop + k_zone, 2,
      35, "'client_id' must not be empty"},
     {"client_id_missing", "site: s\nbroker: {uri: tcp://h}\nstorage: {path: p.db}\n" + k_loop + k_zone, 2, 9,
      "broker: missing required key 'client_id'"},
-    {"keepalive_fraction", "site: s\nbroker: {uri: tcp://h, client_id: c, keepalive_s: 2.5}\nstorage: {path: p.db}\n" +
-                               k_loop + k_zone,
-     2, 51, "'keepalive_s' must be a whole number of seconds"},
-    {"storage_path_missing", "site: s\nbroker: {uri: tcp://h, client_id: c}\nstorage: {keep_events_days: 10}\n" +
-                                 k_loop + k_zone,
-     3, 10, "storage: missing required key 'path'"},
-    {"retention_zero", "site: s\nbroker: {uri: tcp://h, client_id: c}\nstorage: {path: p, keep_samples_days: 0}\n" +
-                           k_loop + k_zone,
-     3, 39, "'keep_samples_days' must be greater than 0, got 0"},
+    {"keepalive_fraction",
+     "site: s\nbroker: {uri: tcp://h, client_id: c, keepalive_s: 2.5}\nstorage: {path: p.db}\n" + k_loop + k_zone, 2,
+     51, "'keepalive_s' must be a whole number of seconds"},
+    {"storage_path_missing",
+     "site: s\nbroker: {uri: tcp://h, client_id: c}\nstorage: {keep_events_days: 10}\n" + k_loop + k_zone, 3, 10,
+     "storage: missing required key 'path'"},
+    {"retention_zero",
+     "site: s\nbroker: {uri: tcp://h, client_id: c}\nstorage: {path: p, keep_samples_days: 0}\n" + k_loop + k_zone, 3,
+     39, "'keep_samples_days' must be greater than 0, got 0"},
     {"logging_level", k_head + "logging: {level: loud}\n" + k_loop + k_zone, 4, 18,
      "logging level 'loud' is not one of trace, debug, info"},
     {"plausibility_inverted", k_head + "plausibility: {water_c: {min: 30, max: 30}}\n" + k_loop + k_zone, 4, 31,
      "plausibility water_c: 'min' (30) must be below 'max' (30)"},
     {"output_reserved_by_service",
-     k_head + "loops:\n  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: dewmargin/events, min_c: 15, max_c: 20}}\n" +
+     k_head +
+         "loops:\n  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: dewmargin/events, min_c: 15, max_c: "
+         "20}}\n" +
          k_zone,
      5, 59, "topic 'dewmargin/events' is reserved for the service's own messages under 'dewmargin/'"},
     {"output_wildcard",
-     k_head + "loops:\n  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: p/#, min_c: 15, max_c: 20}}\n" + k_zone,
+     k_head + "loops:\n  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: p/#, min_c: 15, max_c: 20}}\n" +
+         k_zone,
      5, 59, "topic 'p/#' must not contain the MQTT wildcards '+' or '#' (the service publishes to exact topics)"},
     {"setpoint_min_missing",
      k_head + "loops:\n  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: p/sp, max_c: 20}}\n" + k_zone, 5, 51,
      "loop 'la' setpoint: missing required key 'min_c'"},
     {"fall_rate_zero",
-     k_head + "loops:\n  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: p/sp, min_c: 15, max_c: 20, "
-              "fall_k_per_min: 0}}\n" +
+     k_head +
+         "loops:\n  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: p/sp, min_c: 15, max_c: 20, "
+         "fall_k_per_min: 0}}\n" +
          k_zone,
      5, 103, "'fall_k_per_min' must be greater than 0, got 0"},
-    {"flow_unit", k_head + "loops:\n  - {id: la, supply_temp: {topic: p/s}, flow: {topic: p/f, unit: kg/s},\n"
-                           "     setpoint: {topic: p/sp, min_c: 15, max_c: 20}}\n" + k_zone,
+    {"flow_unit",
+     k_head +
+         "loops:\n  - {id: la, supply_temp: {topic: p/s}, flow: {topic: p/f, unit: kg/s},\n"
+         "     setpoint: {topic: p/sp, min_c: 15, max_c: 20}}\n" +
+         k_zone,
      5, 66, "unit 'kg/s' is not valid for a flow input; use 'L/s', 'm3/h' or 'gpm'"},
-    {"temperature_unit", k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t, unit: K}, humidity: {topic: b/h}}\n",
-     7, 53, "unit 'K' is not valid for a temperature input; use 'C' or 'F'"},
+    {"temperature_unit",
+     k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t, unit: K}, humidity: {topic: b/h}}\n", 7,
+     53, "unit 'K' is not valid for a temperature input; use 'C' or 'F'"},
     {"pointer_bad_escape",
      k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t, field: /a~2}, humidity: {topic: b/h}}\n",
      7, 54, "'field' '/a~2' is not a valid JSON pointer"},
@@ -395,17 +405,20 @@ const text_case k_rule_cases[] = {
      "'active' must be a non-empty list of payloads"},
     {"valve_same_payloads", k_head + k_loop + k_zone_block + "    valve: {topic: b/v, open: x, closed: x}\n", 11, 42,
      "zone 'z1' valve: 'open' and 'closed' payloads must differ"},
-    {"zone_id_with_slash", k_head + k_loop + "zones:\n  - {id: a/b, loop: la, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n",
-     7, 10, "zone id 'a/b' must not contain '/', '+' or '#'"},
-    {"humidity_empty_list", k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t}, humidity: []}\n", 7,
-     58, "'humidity' must be a map like { topic: ... } or a list of them (at least one)"},
-    {"topic_empty", k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: ''}, humidity: {topic: b/h}}\n", 7,
-     42, "'topic' must not be empty"},
+    {"zone_id_with_slash",
+     k_head + k_loop + "zones:\n  - {id: a/b, loop: la, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n", 7, 10,
+     "zone id 'a/b' must not contain '/', '+' or '#'"},
+    {"humidity_empty_list", k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t}, humidity: []}\n",
+     7, 58, "'humidity' must be a map like { topic: ... } or a list of them (at least one)"},
+    {"topic_empty", k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: ''}, humidity: {topic: b/h}}\n",
+     7, 42, "'topic' must not be empty"},
     {"same_topic_same_field",
      k_head + k_loop +
          "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/j, field: /t}, humidity: {topic: b/j, field: /t}}\n",
      7, 77, "topic 'b/j' field '/t' is already read by zone 'z1' air_temp (line 7)"},
-    {"duplicate_loop_id", k_head + k_loop + "  - {id: la, supply_temp: {topic: p/s2}, setpoint: {topic: p/sp2, min_c: 15, max_c: 20}}\n" + k_zone,
+    {"duplicate_loop_id",
+     k_head + k_loop + "  - {id: la, supply_temp: {topic: p/s2}, setpoint: {topic: p/sp2, min_c: 15, max_c: 20}}\n" +
+         k_zone,
      6, 10, "duplicate loop id 'la' (first defined at line 5)"},
     {"zones_empty", k_head + k_loop + "zones: []\n", 6, 8, "'zones' must list at least one zone"},
     {"zones_missing", k_head + k_loop, 1, 1, "missing required key 'zones'"},
@@ -414,7 +427,8 @@ const text_case k_rule_cases[] = {
          "dehumidifiers:\n  - {id: d, zones: [z1], dew_point_request: {topic: p/d, min_c: 14, max_c: 8}}\n",
      9, 65, "dehumidifier 'd' dew_point_request: 'min_c' (14) must not be above 'max_c' (8)"},
     {"dehumidifier_no_zones",
-     k_head + k_loop + k_zone + "dehumidifiers:\n  - {id: d, zones: [], dew_point_request: {topic: p/d, min_c: 8, max_c: 14}}\n",
+     k_head + k_loop + k_zone +
+         "dehumidifiers:\n  - {id: d, zones: [], dew_point_request: {topic: p/d, min_c: 8, max_c: 14}}\n",
      9, 20, "'zones' must be a non-empty list of zone ids"},
     {"unknown_key_far_from_all", k_head + "colour: blue\n" + k_loop + k_zone, 4, 1,
      "unknown key 'colour' at the top level (expected one of: site, broker"},
@@ -430,8 +444,10 @@ const text_case k_rule_cases[] = {
          "  - {id: z2, loop: la, air_temp: {topic: b/t2}, humidity: {topic: b/h2}}\n",
      4, 48, "defaults: margin_alarm_k (1) must be below margin_warn_k (1)"},
     {"zone_warn_below_default_alarm",
-     k_head + k_loop + "zones:\n  - {id: z1, loop: la, margin_warn_k: 0.5, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n",
+     k_head + k_loop +
+         "zones:\n  - {id: z1, loop: la, margin_warn_k: 0.5, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n",
      7, 39, "zone 'z1': margin_alarm_k (1) must be below margin_warn_k (0.5), and margin_alarm_k comes from defaults"},
+    {"merge_key", k_head + "<<: {site: t}\n" + k_loop + k_zone, 4, 1, "YAML merge keys ('<<') are not supported"},
     {"second_document", k_head + k_loop + k_zone + "---\nsite: other\n", 9, 1, "only one YAML document is expected"},
     {"top_level_list", "- site: s\n", 1, 1, "the top level must be a map of sections"},
     {"empty_text", "", 1, 1, "the file holds no config"},
@@ -464,10 +480,22 @@ TEST(ConfigLoader, ReportsErrorsInFileOrderWhateverTheSectionOrder) {
   EXPECT_EQ(r.errors[2].to_string(), "t.yaml:5:23: 'confirm_s' must not be negative, got -1");
 }
 
+TEST(ConfigLoader, JudgesAZoneThatWritesBothMarginsEvenWhenTheDefaultIsBad) {
+  const std::string yaml =
+      k_head + "defaults: {margin_warn_k: x}\n" + k_loop +
+      "zones:\n  - {id: z1, loop: la, margin_warn_k: 1, margin_alarm_k: 2, air_temp: {topic: b/t}, "
+      "humidity: {topic: b/h}}\n";
+  const auto r = load_config_text(yaml, "t.yaml");
+  ASSERT_EQ(r.errors.size(), 2u) << all_errors(r);
+  EXPECT_EQ(r.errors[0].to_string(), "t.yaml:4:27: 'margin_warn_k' must be a number, got 'x'");
+  EXPECT_EQ(r.errors[1].to_string(), "t.yaml:8:58: zone 'z1': margin_alarm_k (2) must be below margin_warn_k (1)");
+}
+
 TEST(ConfigLoader, UnusableIdsCauseNoSecondErrorAtTheirReferences) {
-  const std::string yaml = k_head +
-                           "loops:\n  - {id: l/a, supply_temp: {topic: p/s}, setpoint: {topic: p/sp, min_c: 15, max_c: 20}}\n"
-                           "zones:\n  - {id: z1, loop: l/a, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n";
+  const std::string yaml =
+      k_head +
+      "loops:\n  - {id: l/a, supply_temp: {topic: p/s}, setpoint: {topic: p/sp, min_c: 15, max_c: 20}}\n"
+      "zones:\n  - {id: z1, loop: l/a, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n";
   const auto r = load_config_text(yaml, "t.yaml");
   ASSERT_EQ(r.errors.size(), 1u) << all_errors(r);
   EXPECT_EQ(r.errors[0].line, 5);

@@ -23,14 +23,22 @@ std::string plural(std::size_t n, const char* one, const char* many) {
 
 const char* unit_label(input_unit u) {
   switch (u) {
-    case input_unit::celsius: return "°C";
-    case input_unit::fahrenheit: return "°F";
-    case input_unit::percent: return "% RH";
-    case input_unit::fraction: return "RH fraction";
-    case input_unit::litres_per_second: return "L/s";
-    case input_unit::cubic_metres_per_hour: return "m3/h";
-    case input_unit::us_gallons_per_minute: return "gpm";
-    case input_unit::none: break;
+    case input_unit::celsius:
+      return "°C";
+    case input_unit::fahrenheit:
+      return "°F";
+    case input_unit::percent:
+      return "% RH";
+    case input_unit::fraction:
+      return "RH fraction";
+    case input_unit::litres_per_second:
+      return "L/s";
+    case input_unit::cubic_metres_per_hour:
+      return "m3/h";
+    case input_unit::us_gallons_per_minute:
+      return "gpm";
+    case input_unit::none:
+      break;
   }
   return "";
 }
@@ -44,7 +52,8 @@ std::string describe_input(const input_config& in) {
     s += " active:";
     for (std::size_t i = 0; i < in.active.size(); ++i) s += (i == 0 ? " \"" : ", \"") + in.active[i] + "\"";
   }
-  if (in.stale_after_s) s += *in.stale_after_s == 0.0 ? " (never stale)" : " (stale after " + num(*in.stale_after_s) + " s)";
+  if (in.stale_after_s)
+    s += *in.stale_after_s == 0.0 ? " (never stale)" : " (stale after " + num(*in.stale_after_s) + " s)";
   return s;
 }
 
@@ -56,8 +65,8 @@ void line(std::ostream& out, const char* label, const std::string& text) {
 
 std::string thresholds_text(const band_thresholds& t, const band_thresholds& defaults) {
   std::string s = "warn " + num(t.margin_warn_k) + " K, alarm " + num(t.margin_alarm_k) + " K, hysteresis " +
-                  num(t.hysteresis_k) + " K, confirm " + num(t.confirm_s) + " s, stale after " +
-                  num(t.stale_after_s) + " s, trend window " + num(t.trend_window_s) + " s";
+                  num(t.hysteresis_k) + " K, confirm " + num(t.confirm_s) + " s, stale after " + num(t.stale_after_s) +
+                  " s, trend window " + num(t.trend_window_s) + " s";
   std::vector<const char*> overridden;
   if (t.margin_warn_k != defaults.margin_warn_k) overridden.push_back("margin_warn_k");
   if (t.margin_alarm_k != defaults.margin_alarm_k) overridden.push_back("margin_alarm_k");
@@ -83,15 +92,16 @@ void print_summary(const std::string& file, const site_config& c, std::ostream& 
 
   out << file << ": ok\n";
   out << "site      " << c.site << '\n';
-  std::string broker = c.broker.uri + ", client id " + c.broker.client_id + ", keepalive " + num(c.broker.keepalive_s) + " s";
+  std::string broker =
+      c.broker.uri + ", client id " + c.broker.client_id + ", keepalive " + num(c.broker.keepalive_s) + " s";
   if (!c.broker.username.empty()) broker += ", user " + c.broker.username;
   if (!c.broker.password_file.empty()) broker += ", password from " + c.broker.password_file;
   if (c.broker.tls) broker += ", TLS";
   out << "broker    " << broker << '\n';
   out << "storage   " << c.storage.path << " (events kept " << num(c.storage.keep_events_days) << " d, samples "
       << num(c.storage.keep_samples_days) << " d)\n";
-  out << "publish   prefix " << c.publish.prefix << "/ (unchanged states at most every " << num(c.publish.min_interval_s)
-      << " s)\n";
+  out << "publish   prefix " << c.publish.prefix << "/ (unchanged states at most every "
+      << num(c.publish.min_interval_s) << " s)\n";
   out << "logging   " << c.logging.level << '\n';
 
   out << "\nloops (" << c.loops.size() << ")\n";
@@ -108,8 +118,9 @@ void print_summary(const std::string& file, const site_config& c, std::ostream& 
       count(*l.flow);
     }
     const auto& s = l.setpoint;
-    line(out, "setpoint", s.topic + ", " + num(s.min_c) + " to " + num(s.max_c) + " °C (reset margin " +
-                              num(s.reset_margin_k) + " K, falls at most " + num(s.fall_k_per_min) + " K/min)");
+    line(out, "setpoint",
+         s.topic + ", " + num(s.min_c) + " to " + num(s.max_c) + " °C (reset margin " + num(s.reset_margin_k) +
+             " K, falls at most " + num(s.fall_k_per_min) + " K/min)");
     line(out, "inputs stale after", l.stale_after_s == 0.0 ? "never" : num(l.stale_after_s) + " s");
   }
 
@@ -136,8 +147,9 @@ void print_summary(const std::string& file, const site_config& c, std::ostream& 
       count(*z.window_contact);
     }
     if (z.valve) {
-      line(out, "valve", z.valve->topic + " (\"" + z.valve->open_payload + "\" / \"" + z.valve->closed_payload +
-                             "\", reopen after " + num(z.valve->reopen_after_s) + " s)");
+      line(out, "valve",
+           z.valve->topic + " (\"" + z.valve->open_payload + "\" / \"" + z.valve->closed_payload + "\", reopen after " +
+               num(z.valve->reopen_after_s) + " s)");
     } else {
       line(out, "valve", "none");
     }
@@ -150,8 +162,8 @@ void print_summary(const std::string& file, const site_config& c, std::ostream& 
     for (const auto& z : d.zones) zones += (zones.empty() ? "" : ", ") + z;
     const auto& r = d.dew_point_request;
     out << "  " << d.id << " (zones " << zones << ")\n";
-    line(out, "dew_point_request", r.topic + ", " + num(r.min_c) + " to " + num(r.max_c) + " °C (offset " +
-                                       num(r.offset_k) + " K)");
+    line(out, "dew_point_request",
+         r.topic + ", " + num(r.min_c) + " to " + num(r.max_c) + " °C (offset " + num(r.offset_k) + " K)");
   }
 
   out << "\ntotals: " << plural(c.zones.size(), "zone", "zones") << ", " << plural(c.loops.size(), "loop", "loops")

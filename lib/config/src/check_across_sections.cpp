@@ -64,8 +64,8 @@ void check_inputs(std::vector<input_record> inputs, const std::vector<output_rec
                    [](const input_record& a, const input_record& b) { return before(a.topic_at, b.topic_at); });
   for (std::size_t i = 0; i < inputs.size(); ++i) {
     const input_record& in = inputs[i];
-    const auto out = std::find_if(outputs.begin(), outputs.end(),
-                                  [&](const output_record& o) { return o.topic == in.topic; });
+    const auto out =
+        std::find_if(outputs.begin(), outputs.end(), [&](const output_record& o) { return o.topic == in.topic; });
     if (out != outputs.end()) {
       diag.error(in.topic_at, "topic '" + in.topic + "' is published by the service (" + out->owner + ", " +
                                   line_of(out->topic_at) + "); reading it back would feed back");
@@ -80,16 +80,16 @@ void check_inputs(std::vector<input_record> inputs, const std::vector<output_rec
       const input_record& earlier = inputs[j];
       if (earlier.topic != in.topic) continue;
       if (earlier.field == in.field) {
-        const std::string what = in.field.empty() ? "topic '" + in.topic + "'"
-                                                  : "topic '" + in.topic + "' field '" + in.field + "'";
+        const std::string what =
+            in.field.empty() ? "topic '" + in.topic + "'" : "topic '" + in.topic + "' field '" + in.field + "'";
         diag.error(in.topic_at, what + " is already read by " + earlier.owner + " (" + line_of(earlier.topic_at) + ")");
         break;
       }
       if (earlier.field.empty() != in.field.empty()) {
-        diag.error(in.topic_at, "topic '" + in.topic + "' is read as " + (earlier.field.empty() ? "a bare value" : "JSON") +
-                                    " by " + earlier.owner + " (" + line_of(earlier.topic_at) + ") and as " +
-                                    (in.field.empty() ? "a bare value" : "JSON") +
-                                    " here; one topic carries one kind of payload");
+        diag.error(in.topic_at,
+                   "topic '" + in.topic + "' is read as " + (earlier.field.empty() ? "a bare value" : "JSON") + " by " +
+                       earlier.owner + " (" + line_of(earlier.topic_at) + ") and as " +
+                       (in.field.empty() ? "a bare value" : "JSON") + " here; one topic carries one kind of payload");
         break;
       }
     }
@@ -102,8 +102,8 @@ void check_outputs(std::vector<output_record> outputs, const std::optional<std::
   for (std::size_t i = 0; i < outputs.size(); ++i) {
     const output_record& out = outputs[i];
     if (prefix && reserved_by_service(out.topic, *prefix)) {
-      diag.error(out.topic_at, "topic '" + out.topic + "' is reserved for the service's own messages under '" +
-                                   *prefix + "/'");
+      diag.error(out.topic_at,
+                 "topic '" + out.topic + "' is reserved for the service's own messages under '" + *prefix + "/'");
       continue;
     }
     for (std::size_t j = 0; j < i; ++j) {

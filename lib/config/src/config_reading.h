@@ -12,14 +12,14 @@ namespace dewmargin::config_detail {
 
 struct input_record {
   std::string topic;
-  std::string field;    // empty: bare payload
-  std::string owner;    // "zone 'level2-east' air_temp"
+  std::string field;  // empty: bare payload
+  std::string owner;  // "zone 'level2-east' air_temp"
   source_mark topic_at;
 };
 
 struct output_record {
   std::string topic;
-  std::string owner;    // "loop 'loop-a' setpoint"
+  std::string owner;  // "loop 'loop-a' setpoint"
   source_mark topic_at;
 };
 
@@ -30,7 +30,7 @@ struct id_record {
 
 // A name that must match an id elsewhere (a zone's loop, a dehumidifier's zones).
 struct reference_record {
-  std::string owner;    // "zone 'level2-east'"
+  std::string owner;  // "zone 'level2-east'"
   std::string target;
   source_mark at;
 };
@@ -39,7 +39,7 @@ struct reference_record {
 struct threshold_marks {
   std::optional<source_mark> warn_at;
   std::optional<source_mark> alarm_at;
-  bool valid = true;    // false when a threshold value itself was bad (already reported)
+  bool valid = true;  // false when a threshold value itself was bad (already reported)
 };
 
 struct config_index {
@@ -50,7 +50,7 @@ struct config_index {
   std::vector<id_record> dehumidifier_ids;
   std::vector<reference_record> zone_loops;
   std::vector<reference_record> dehumidifier_zones;
-  std::optional<std::string> prefix;   // set only when the prefix itself is valid
+  std::optional<std::string> prefix;  // set only when the prefix itself is valid
   threshold_marks defaults;
 };
 

@@ -15,6 +15,7 @@ namespace dewmargin::config_detail {
 // The candidate closest to `word`, if it is close enough to be a likely typo
 // (at most a third of the word's length, at least 1, at most 3 edits). Ties go to
 // the earlier candidate.
-[[nodiscard]] std::optional<std::string> nearest_word(std::string_view word, const std::vector<std::string>& candidates);
+[[nodiscard]] std::optional<std::string> nearest_word(std::string_view word,
+                                                      const std::vector<std::string>& candidates);
 
 }  // namespace dewmargin::config_detail

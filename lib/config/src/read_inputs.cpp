@@ -13,10 +13,14 @@ struct unit_choice {
 
 const char* kind_name(input_kind kind) {
   switch (kind) {
-    case input_kind::temperature: return "temperature";
-    case input_kind::humidity: return "humidity";
-    case input_kind::flow: return "flow";
-    case input_kind::binary: break;
+    case input_kind::temperature:
+      return "temperature";
+    case input_kind::humidity:
+      return "humidity";
+    case input_kind::flow:
+      return "flow";
+    case input_kind::binary:
+      break;
   }
   return "switch";
 }
@@ -25,13 +29,16 @@ const char* kind_name(input_kind kind) {
 // flow in L/s, the unit the core computes with).
 std::vector<unit_choice> units_for(input_kind kind) {
   switch (kind) {
-    case input_kind::temperature: return {{"C", input_unit::celsius}, {"F", input_unit::fahrenheit}};
-    case input_kind::humidity: return {{"%", input_unit::percent}, {"fraction", input_unit::fraction}};
+    case input_kind::temperature:
+      return {{"C", input_unit::celsius}, {"F", input_unit::fahrenheit}};
+    case input_kind::humidity:
+      return {{"%", input_unit::percent}, {"fraction", input_unit::fraction}};
     case input_kind::flow:
       return {{"L/s", input_unit::litres_per_second},
               {"m3/h", input_unit::cubic_metres_per_hour},
               {"gpm", input_unit::us_gallons_per_minute}};
-    case input_kind::binary: break;
+    case input_kind::binary:
+      break;
   }
   return {};
 }
@@ -148,8 +155,8 @@ std::optional<input_config> read_input(const YAML::Node& node, source_mark at, c
   const auto choices = units_for(kind);
   if (!choices.empty()) in.unit = choices.front().unit;
   if (auto unit = m.text("unit")) {
-    const auto match = std::find_if(choices.begin(), choices.end(),
-                                    [&](const unit_choice& c) { return unit->value == c.text; });
+    const auto match =
+        std::find_if(choices.begin(), choices.end(), [&](const unit_choice& c) { return unit->value == c.text; });
     if (match != choices.end()) {
       in.unit = match->unit;
     } else {

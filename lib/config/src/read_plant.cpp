@@ -114,8 +114,8 @@ bool read_input_list(const map_reader& m, const char* key, input_kind kind, bool
   return ok;
 }
 
-void check_margin_order(const std::string& context, const band_thresholds& t, const threshold_marks& own,
-                        bool inherits, diagnostics& diag) {
+void check_margin_order(const std::string& context, const band_thresholds& t, const threshold_marks& own, bool inherits,
+                        diagnostics& diag) {
   if (!own.valid || t.margin_alarm_k < t.margin_warn_k) return;
   // Reported where this map wrote a threshold; a map that wrote neither inherits a
   // pair already reported at `defaults:`.
@@ -170,15 +170,15 @@ void read_loops(const YAML::Node& node, source_mark at, reading& r) {
     loop_config loop;
     loop.stale_after_s = r.config.defaults.stale_after_s;
     if (auto id = read_id(m, "loop", r.index.loop_ids, r.diag)) loop.id = *id;
-    (void)read_required_input(m, "supply_temp", input_kind::temperature, loop.supply_temp, r);
-    (void)read_optional_input(m, "return_temp", input_kind::temperature, loop.return_temp, r);
-    (void)read_optional_input(m, "flow", input_kind::flow, loop.flow, r);
+    read_required_input(m, "supply_temp", input_kind::temperature, loop.supply_temp, r);
+    read_optional_input(m, "return_temp", input_kind::temperature, loop.return_temp, r);
+    read_optional_input(m, "flow", input_kind::flow, loop.flow, r);
     if (m.require("setpoint")) {
       if (auto s = read_setpoint(*m.value("setpoint"), m.value_mark("setpoint"), m.context() + " setpoint", r)) {
         loop.setpoint = *s;
       }
     }
-    (void)m.number_into("stale_after_s", number_rule::non_negative, loop.stale_after_s);
+    m.number_into("stale_after_s", number_rule::non_negative, loop.stale_after_s);
     r.config.loops.push_back(std::move(loop));
   }
 }
@@ -189,8 +189,8 @@ void read_zones(const YAML::Node& node, source_mark at, reading& r) {
     r.diag.error(at, "'zones' must list at least one zone");
     return;
   }
-  std::vector<std::string> keys{"id",    "loop",  "air_temp", "humidity", "surfaces", "condensation_switch",
-                                "window_contact", "valve"};
+  std::vector<std::string> keys{
+      "id", "loop", "air_temp", "humidity", "surfaces", "condensation_switch", "window_contact", "valve"};
   keys.insert(keys.end(), threshold_keys().begin(), threshold_keys().end());
   int index = 0;
   for (const auto& item : node) {
@@ -207,16 +207,19 @@ void read_zones(const YAML::Node& node, source_mark at, reading& r) {
       zone.loop = loop->value;
       r.index.zone_loops.push_back({m.context(), loop->value, loop->at});
     }
-    (void)read_required_input(m, "air_temp", input_kind::temperature, zone.air_temp, r);
-    (void)read_input_list(m, "humidity", input_kind::humidity, true, zone.humidity, r);
-    (void)read_input_list(m, "surfaces", input_kind::temperature, false, zone.surfaces, r);
-    (void)read_optional_input(m, "condensation_switch", input_kind::binary, zone.condensation_switch, r);
-    (void)read_optional_input(m, "window_contact", input_kind::binary, zone.window_contact, r);
+    read_required_input(m, "air_temp", input_kind::temperature, zone.air_temp, r);
+    read_input_list(m, "humidity", input_kind::humidity, true, zone.humidity, r);
+    read_input_list(m, "surfaces", input_kind::temperature, false, zone.surfaces, r);
+    read_optional_input(m, "condensation_switch", input_kind::binary, zone.condensation_switch, r);
+    read_optional_input(m, "window_contact", input_kind::binary, zone.window_contact, r);
     if (m.has("valve")) zone.valve = read_valve(*m.value("valve"), m.value_mark("valve"), m.context() + " valve", r);
 
     zone.thresholds = r.config.defaults;
     const threshold_marks own = read_thresholds(m, zone.thresholds);
-    if (r.index.defaults.valid) check_margin_order(m.context(), zone.thresholds, own, true, r.diag);
+    // With a bad default (already reported) only a zone that writes both can be judged.
+    if (r.index.defaults.valid || (own.warn_at && own.alarm_at)) {
+      check_margin_order(m.context(), zone.thresholds, own, true, r.diag);
+    }
     r.config.zones.push_back(std::move(zone));
   }
 }
@@ -231,8 +234,7 @@ void read_dehumidifiers(const YAML::Node& node, source_mark at, reading& r) {
                    "each dehumidifier must be a map with id, zones and dew_point_request, got " + describe(item));
       continue;
     }
-    const map_reader m(item, entity_context(item, "dehumidifier", index), {"id", "zones", "dew_point_request"},
-                       r.diag);
+    const map_reader m(item, entity_context(item, "dehumidifier", index), {"id", "zones", "dew_point_request"}, r.diag);
     dehumidifier_config d;
     if (auto id = read_id(m, "dehumidifier", r.index.dehumidifier_ids, r.diag)) d.id = *id;
     if (m.require("zones")) {
@@ -260,8 +262,8 @@ void read_dehumidifiers(const YAML::Node& node, source_mark at, reading& r) {
                      m.value_mark("dew_point_request"), r.diag)) {
         const map_reader rm(req, owner, {"topic", "min_c", "max_c", "offset_k"}, r.diag);
         if (auto topic = read_output_topic(rm, owner, r)) d.dew_point_request.topic = *topic;
-        (void)read_range_c(rm, d.dew_point_request.min_c, d.dew_point_request.max_c);
-        (void)rm.number_into("offset_k", number_rule::non_negative, d.dew_point_request.offset_k);
+        read_range_c(rm, d.dew_point_request.min_c, d.dew_point_request.max_c);
+        rm.number_into("offset_k", number_rule::non_negative, d.dew_point_request.offset_k);
       }
     }
     r.config.dehumidifiers.push_back(std::move(d));

@@ -73,8 +73,8 @@ void read_broker(const YAML::Node& node, reading& r) {
   broker_config& b = r.config.broker;
   auto uri = m.text("uri", presence::required);
   if (uri && check_broker_uri(*uri, r.diag)) b.uri = uri->value;
-  (void)non_empty_text(m, "client_id", presence::required, b.client_id);
-  (void)non_empty_text(m, "username", presence::optional, b.username);
+  non_empty_text(m, "client_id", presence::required, b.client_id);
+  non_empty_text(m, "username", presence::optional, b.username);
   if (non_empty_text(m, "password_file", presence::optional, b.password_file) && !b.password_file.empty() &&
       b.username.empty() && !m.has("username")) {
     // MQTT 3.1.1 §3.1.2.9: a password may only be sent together with a user name.
@@ -83,8 +83,8 @@ void read_broker(const YAML::Node& node, reading& r) {
   if (auto k = m.number("keepalive_s", number_rule::positive)) {
     if (k->value != static_cast<double>(static_cast<long>(k->value)) || k->value > 65535.0) {
       // The MQTT keep-alive is a 16-bit count of whole seconds.
-      r.diag.error(k->at, "'keepalive_s' must be a whole number of seconds from 1 to 65535, got " +
-                              format_number(k->value));
+      r.diag.error(k->at,
+                   "'keepalive_s' must be a whole number of seconds from 1 to 65535, got " + format_number(k->value));
     } else {
       b.keepalive_s = k->value;
     }
@@ -92,9 +92,9 @@ void read_broker(const YAML::Node& node, reading& r) {
   if (auto tls_node = section(m, "tls", presence::optional, " like { ca_file: ..., cert_file: ..., key_file: ... }")) {
     const map_reader t(*tls_node, "broker tls", {"ca_file", "cert_file", "key_file"}, r.diag);
     tls_config tls;
-    (void)non_empty_text(t, "ca_file", presence::optional, tls.ca_file);
-    (void)non_empty_text(t, "cert_file", presence::optional, tls.cert_file);
-    (void)non_empty_text(t, "key_file", presence::optional, tls.key_file);
+    non_empty_text(t, "ca_file", presence::optional, tls.ca_file);
+    non_empty_text(t, "cert_file", presence::optional, tls.cert_file);
+    non_empty_text(t, "key_file", presence::optional, tls.key_file);
     if (t.has("key_file") && !t.has("cert_file")) {
       r.diag.error(t.key_mark("key_file"), "broker tls: 'key_file' needs the client certificate in 'cert_file'");
     }
@@ -109,9 +109,9 @@ void read_broker(const YAML::Node& node, reading& r) {
 void read_storage(const YAML::Node& node, reading& r) {
   const map_reader m(node, "storage", {"path", "keep_events_days", "keep_samples_days"}, r.diag);
   storage_config& s = r.config.storage;
-  (void)non_empty_text(m, "path", presence::required, s.path);
-  (void)m.number_into("keep_events_days", number_rule::positive, s.keep_events_days);
-  (void)m.number_into("keep_samples_days", number_rule::positive, s.keep_samples_days);
+  non_empty_text(m, "path", presence::required, s.path);
+  m.number_into("keep_events_days", number_rule::positive, s.keep_events_days);
+  m.number_into("keep_samples_days", number_rule::positive, s.keep_samples_days);
 }
 
 void read_publish(const YAML::Node& node, reading& r) {
@@ -131,7 +131,7 @@ void read_publish(const YAML::Node& node, reading& r) {
       r.index.prefix = v;
     }
   }
-  (void)m.number_into("min_interval_s", number_rule::non_negative, p.min_interval_s);
+  m.number_into("min_interval_s", number_rule::non_negative, p.min_interval_s);
 }
 
 void read_defaults(const YAML::Node& node, reading& r) {
@@ -149,9 +149,9 @@ void read_range(const map_reader& section_reader, const char* key, value_range& 
   const bool hi_ok = m.number_into("max", number_rule::any, v.max);
   if (!lo_ok || !hi_ok) return;
   if (v.min >= v.max) {
-    r.diag.error(m.has("min") ? m.value_mark("min") : m.value_mark("max"),
-                 m.context() + ": 'min' (" + format_number(v.min) + ") must be below 'max' (" + format_number(v.max) +
-                     ")");
+    r.diag.error(
+        m.has("min") ? m.value_mark("min") : m.value_mark("max"),
+        m.context() + ": 'min' (" + format_number(v.min) + ") must be below 'max' (" + format_number(v.max) + ")");
     return;
   }
   range = v;
@@ -174,8 +174,8 @@ void read_logging(const YAML::Node& node, reading& r) {
   constexpr const char* k_levels[] = {"trace", "debug", "info", "warn", "error", "critical", "off"};
   if (std::find_if(std::begin(k_levels), std::end(k_levels), [&](const char* l) { return level->value == l; }) ==
       std::end(k_levels)) {
-    r.diag.error(level->at, "logging level '" + level->value +
-                                "' is not one of trace, debug, info, warn, error, critical, off");
+    r.diag.error(level->at,
+                 "logging level '" + level->value + "' is not one of trace, debug, info, warn, error, critical, off");
     return;
   }
   r.config.logging.level = level->value;
@@ -186,16 +186,16 @@ void read_logging(const YAML::Node& node, reading& r) {
 void read_site(const YAML::Node& root, reading& r) {
   if (!root.IsMap()) {
     const source_mark at = mark_of(root);
-    r.diag.error(at.line == 0 ? source_mark{1, 1} : at,
-                 "the top level must be a map of sections (site, broker, storage, loops, zones), got " +
-                     describe(root));
+    r.diag.error(
+        at.line == 0 ? source_mark{1, 1} : at,
+        "the top level must be a map of sections (site, broker, storage, loops, zones), got " + describe(root));
     return;
   }
   const map_reader top(root, "",
-                       {"site", "broker", "storage", "publish", "defaults", "plausibility", "logging", "loops",
-                        "zones", "dehumidifiers"},
+                       {"site", "broker", "storage", "publish", "defaults", "plausibility", "logging", "loops", "zones",
+                        "dehumidifiers"},
                        r.diag);
-  (void)non_empty_text(top, "site", presence::required, r.config.site);
+  non_empty_text(top, "site", presence::required, r.config.site);
   if (auto n = section(top, "broker", presence::required, " like { uri: ..., client_id: ... }")) read_broker(*n, r);
   if (auto n = section(top, "storage", presence::required, " like { path: ... }")) read_storage(*n, r);
   r.index.prefix = r.config.publish.prefix;  // the default, unless publish: says otherwise

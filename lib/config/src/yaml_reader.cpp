@@ -62,11 +62,15 @@ source_mark mark_of(const YAML::Node& node) {
 
 std::string describe(const YAML::Node& node) {
   switch (node.Type()) {
-    case YAML::NodeType::Map: return node.size() == 0 ? "an empty map" : "a map";
-    case YAML::NodeType::Sequence: return node.size() == 0 ? "an empty list" : "a list";
-    case YAML::NodeType::Scalar: return "'" + node.Scalar() + "'";
+    case YAML::NodeType::Map:
+      return node.size() == 0 ? "an empty map" : "a map";
+    case YAML::NodeType::Sequence:
+      return node.size() == 0 ? "an empty list" : "a list";
+    case YAML::NodeType::Scalar:
+      return "'" + node.Scalar() + "'";
     case YAML::NodeType::Null:
-    case YAML::NodeType::Undefined: break;
+    case YAML::NodeType::Undefined:
+      break;
   }
   return "nothing";
 }
@@ -99,8 +103,13 @@ map_reader::map_reader(const YAML::Node& node, std::string context, const std::v
     if (std::find(keys.begin(), keys.end(), name) == keys.end()) {
       if (name == "password" && std::find(keys.begin(), keys.end(), "password_file") != keys.end()) {
         // Secrets stay out of a file that is copied around and checked in.
-        diag_.error(at, "'password' must not be written in the config; put it in a file and name that file with "
-                        "'password_file'");
+        diag_.error(at,
+                    "'password' must not be written in the config; put it in a file and name that file with "
+                    "'password_file'");
+        continue;
+      }
+      if (name == "<<") {
+        diag_.error(at, "YAML merge keys ('<<') are not supported " + where + "; write the keys out");
         continue;
       }
       std::string message = "unknown key '" + name + "' " + where;

@@ -76,8 +76,8 @@ class map_reader {
   std::string context_;
   source_mark mark_;
   diagnostics& diag_;
-  std::vector<entry> entries_;            // known keys, first occurrence each
-  std::vector<std::string> suggested_;    // known keys a misspelt key was taken for
+  std::vector<entry> entries_;          // known keys, first occurrence each
+  std::vector<std::string> suggested_;  // known keys a misspelt key was taken for
 };
 
 // Scalar reads outside a map (list items). `what` names the value in messages.
