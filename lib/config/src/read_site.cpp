@@ -77,12 +77,12 @@ void read_broker(const YAML::Node& node, reading& r) {
   non_empty_text(m, "username", presence::optional, b.username);
   if (non_empty_text(m, "password_file", presence::optional, b.password_file) && !b.password_file.empty() &&
       b.username.empty() && !m.has("username")) {
-    // MQTT 3.1.1 §3.1.2.9: a password may only be sent together with a user name.
+    // MQTT 3.1.1 §3.1.2.9 (from memory): a password may only be sent together with a user name.
     r.diag.error(m.key_mark("password_file"), "broker: 'password_file' needs a 'username'");
   }
   if (auto k = m.number("keepalive_s", number_rule::positive)) {
     if (k->value != static_cast<double>(static_cast<long>(k->value)) || k->value > 65535.0) {
-      // The MQTT keep-alive is a 16-bit count of whole seconds.
+      // The MQTT keep-alive is a 16-bit count of whole seconds (MQTT 3.1.1 §3.1.2.10, from memory).
       r.diag.error(k->at,
                    "'keepalive_s' must be a whole number of seconds from 1 to 65535, got " + format_number(k->value));
     } else {
