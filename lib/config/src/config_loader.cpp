@@ -1,19 +1,76 @@
-// Placeholder until the YAML loader lands in this same change; reports the file as unreadable.
+// Entry points: read the file, parse the YAML, hand the document to the section readers.
 #include "dewmargin/config_loader.h"
 
+#include <cerrno>
+#include <cstdio>
+#include <cstring>
+#include <memory>
+
+#include "config_reading.h"
+
 namespace dewmargin {
+namespace {
 
-std::string config_diagnostic::to_string() const {
-  if (line == 0) return file + ": " + message;
-  return file + ":" + std::to_string(line) + ":" + std::to_string(column) + ": " + message;
+using config_detail::diagnostics;
+using config_detail::source_mark;
+
+source_mark mark_or_start(const YAML::Mark& m) {
+  if (m.is_null()) return {1, 1};
+  return {m.line + 1, m.column + 1};
 }
 
-config_load_result load_config_text(std::string_view, const std::string& file_label) {
-  config_load_result r;
-  r.errors.push_back({file_label, 0, 0, "config loading not implemented yet"});
-  return r;
+}  // namespace
+
+config_load_result load_config_text(std::string_view yaml_text, const std::string& file_label) {
+  diagnostics diag(file_label);
+  site_config config;
+  config_detail::config_index index;
+  try {
+    const std::vector<YAML::Node> documents = YAML::LoadAll(std::string(yaml_text));
+    if (documents.empty() || documents.front().IsNull()) {
+      diag.error({1, 1}, "the file holds no config (expected site, broker, storage, loops and zones)");
+    } else {
+      if (documents.size() > 1) {
+        diag.error(mark_or_start(documents[1].Mark()),
+                   "only one YAML document is expected; this file has " + std::to_string(documents.size()));
+      }
+      config_detail::reading r{config, index, diag};
+      config_detail::read_site(documents.front(), r);
+    }
+  } catch (const YAML::ParserException& e) {
+    diag.error(mark_or_start(e.mark), "YAML syntax error: " + e.msg);
+  } catch (const YAML::Exception& e) {
+    diag.error(mark_or_start(e.mark), "YAML error: " + e.msg);
+  } catch (const std::exception& e) {
+    diag.error({}, std::string("cannot load: ") + e.what());
+  }
+
+  config_load_result result;
+  result.errors = diag.take_in_file_order();
+  if (result.errors.empty()) result.config = std::move(config);
+  return result;
 }
 
-config_load_result load_config_file(const std::filesystem::path& file) { return load_config_text("", file.string()); }
+config_load_result load_config_file(const std::filesystem::path& file) {
+  const std::string label = file.string();
+  std::unique_ptr<std::FILE, int (*)(std::FILE*)> f(std::fopen(label.c_str(), "rb"), &std::fclose);
+  std::string text;
+  int read_errno = 0;
+  if (!f) {
+    read_errno = errno;
+  } else {
+    char buf[8192];
+    std::size_t n = 0;
+    while ((n = std::fread(buf, 1, sizeof buf, f.get())) > 0) text.append(buf, n);
+    // A directory opens fine and fails on the first read (EISDIR).
+    if (std::ferror(f.get())) read_errno = errno != 0 ? errno : EIO;
+  }
+  if (read_errno != 0) {
+    config_load_result result;
+    result.errors.push_back({label, 0, 0, std::string("cannot read: ") + std::strerror(read_errno)});
+    return result;
+  }
+  return load_config_text(text, label);
+}
 
 }  // namespace dewmargin

@@ -1,0 +1,82 @@
+#!/usr/bin/env bash
+# `dewmargin check`: exit codes, summary on stdout, located errors on stderr.
+# Arguments: $1 dewmargin binary, $2 tests/data directory, $3 source directory.
+set -euo pipefail
+bin=$(cd "$(dirname "$1")" && pwd)/$(basename "$1")  # absolute: step 4 changes directory
+data=$2
+src=$3
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+
+failures=0
+fail() {
+  echo "FAIL: $*" >&2
+  failures=$((failures + 1))
+}
+
+# Runs the binary with the given arguments; records stdout, stderr and the exit code
+# without letting `set -e` stop the script on the expected non-zero exits.
+run() {
+  set +e
+  "$bin" "$@" >"$work/out" 2>"$work/err"
+  rc=$?
+  set -e
+}
+
+expect_rc() {
+  [[ $rc -eq $1 ]] || fail "$2: exit code $rc, expected $1 (stderr: $(head -c 400 "$work/err"))"
+}
+
+expect_line() {  # file, extended regex, description
+  grep -Eq -- "$2" "$1" || fail "$3: no line matching '$2' in $(basename "$1"): $(head -c 600 "$1")"
+}
+
+# 1. The example config is valid and summarised.
+example=$src/config/example.yaml
+run check "$example"
+expect_rc 0 "example.yaml"
+expect_line "$work/out" "^$example: ok$" "example.yaml"
+expect_line "$work/out" '^site +harbour-lane-office$' "example.yaml site"
+expect_line "$work/out" '^broker +tcp://127\.0\.0\.1:1883, client id dewmargin-hlo-gw1' "example.yaml broker"
+expect_line "$work/out" '^storage +/var/lib/dewmargin/history\.db' "example.yaml storage"
+expect_line "$work/out" '^publish +prefix dewmargin/' "example.yaml publish"
+expect_line "$work/out" '^loops \(3\)$' "example.yaml loops"
+expect_line "$work/out" '^ +setpoint +plant/hlo/ceiling-north/supply-sp/set, 15 to 20 °C' "example.yaml setpoint range"
+expect_line "$work/out" '^zones \(6\)$' "example.yaml zones"
+expect_line "$work/out" '^  ground-cafe \(loop slab-ground\)$' "example.yaml zone with loop"
+expect_line "$work/out" '^ +air_temp +bldg/hlo/ground/cafe/multisensor\[/temperature\]' "example.yaml topic[field]"
+expect_line "$work/out" '^ +valve +bldg/hlo/first/north/ceiling-valve/set' "example.yaml valve"
+expect_line "$work/out" '^ +thresholds +warn 2\.5 K, alarm 1\.5 K' "example.yaml zone thresholds"
+expect_line "$work/out" '^dehumidifiers \(1\)$' "example.yaml dehumidifiers"
+expect_line "$work/out" '^totals: 6 zones, 3 loops, 1 dehumidifier, 30 inputs subscribed' "example.yaml totals"
+[[ -s $work/err ]] && fail "example.yaml: unexpected stderr: $(cat "$work/err")"
+
+# 2. Three mistakes on three lines: exit 2, all three located on stderr, nothing on stdout.
+bad=$data/config/bad/three_mistakes.yaml
+run check "$bad"
+expect_rc 2 "three_mistakes.yaml"
+expect_line "$work/err" "^$bad:7:16: 'keepalive_s' must be greater than 0" "three_mistakes.yaml keepalive"
+expect_line "$work/err" "^$bad:16:17: 'hysteresis_k' must not be negative" "three_mistakes.yaml hysteresis"
+expect_line "$work/err" "^$bad:22:5: unknown key 'surface' in zone 'room-1'; did you mean 'surfaces'\\?" \
+  "three_mistakes.yaml unknown key"
+lines=$(wc -l <"$work/err")
+[[ $lines -eq 3 ]] || fail "three_mistakes.yaml: $lines lines on stderr, expected 3"
+[[ -s $work/out ]] && fail "three_mistakes.yaml: unexpected stdout: $(cat "$work/out")"
+
+# 3. A missing file: exit 2, one line naming the file.
+missing=$work/no-such-config.yaml
+run check "$missing"
+expect_rc 2 "missing file"
+expect_line "$work/err" "^$missing: cannot read: No such file or directory$" "missing file"
+lines=$(wc -l <"$work/err")
+[[ $lines -eq 1 ]] || fail "missing file: $lines lines on stderr, expected 1"
+
+# 4. A file given with a relative path is named as given.
+(cd "$data/config/good" && "$bin" check minimal.yaml >"$work/out" 2>"$work/err") || fail "relative path: exit $?"
+expect_line "$work/out" '^minimal\.yaml: ok$' "relative path"
+
+if ((failures)); then
+  echo "test_check.sh: $failures expectation(s) broken" >&2
+  exit 1
+fi
+echo "test_check.sh: all expectations met"

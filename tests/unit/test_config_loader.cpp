@@ -1,0 +1,522 @@
+#include <gtest/gtest.h>
+
+#include <algorithm>
+#include <filesystem>
+#include <fstream>
+#include <regex>
+#include <string>
+#include <vector>
+
+#include "dewmargin/config_loader.h"
+
+namespace dewmargin {
+namespace {
+
+namespace fs = std::filesystem;
+
+const fs::path k_config_data = fs::path(DEWMARGIN_TEST_DATA_DIR) / "config";
+
+std::vector<std::string> yaml_files_in(const fs::path& dir) {
+  std::vector<std::string> names;
+  for (const auto& e : fs::directory_iterator(dir)) {
+    if (e.path().extension() == ".yaml") names.push_back(e.path().filename().string());
+  }
+  std::sort(names.begin(), names.end());
+  return names;
+}
+
+std::string all_errors(const config_load_result& r) {
+  std::string s;
+  for (const auto& e : r.errors) s += "\n  " + e.to_string();
+  return s;
+}
+
+std::string name_of_file(const ::testing::TestParamInfo<std::string>& info) {
+  std::string n = fs::path(info.param).stem().string();
+  std::replace_if(
+      n.begin(), n.end(), [](char c) { return !std::isalnum(static_cast<unsigned char>(c)); }, '_');
+  return n;
+}
+
+// ---- bad fixtures: each file states its errors in leading "# expect: LINE:COL: text" lines
+
+struct expected_error {
+  int line;
+  int column;
+  std::string message_part;
+};
+
+std::vector<expected_error> expectations_of(const fs::path& file) {
+  std::ifstream in(file);
+  std::vector<expected_error> out;
+  const std::regex pattern(R"(^# expect: (\d+):(\d+): (.+)$)");
+  std::string text;
+  while (std::getline(in, text)) {
+    std::smatch m;
+    if (!std::regex_match(text, m, pattern)) break;
+    out.push_back({std::stoi(m[1].str()), std::stoi(m[2].str()), m[3].str()});
+  }
+  return out;
+}
+
+class BadConfigFixture : public ::testing::TestWithParam<std::string> {};
+
+TEST_P(BadConfigFixture, ReportsExactlyTheExpectedLocatedErrors) {
+  const fs::path file = k_config_data / "bad" / GetParam();
+  const auto expected = expectations_of(file);
+  ASSERT_FALSE(expected.empty()) << file << " has no '# expect: LINE:COL: message' first line";
+
+  const auto r = load_config_file(file);
+  EXPECT_FALSE(r.ok());
+  EXPECT_FALSE(r.config.has_value());
+  ASSERT_EQ(r.errors.size(), expected.size()) << "errors reported:" << all_errors(r);
+  for (std::size_t i = 0; i < expected.size(); ++i) {
+    const auto& got = r.errors[i];
+    EXPECT_EQ(got.file, file.string());
+    EXPECT_EQ(got.line, expected[i].line) << got.to_string();
+    EXPECT_EQ(got.column, expected[i].column) << got.to_string();
+    EXPECT_NE(got.message.find(expected[i].message_part), std::string::npos)
+        << "expected '" << expected[i].message_part << "' in: " << got.to_string();
+  }
+}
+
+INSTANTIATE_TEST_SUITE_P(Files, BadConfigFixture, ::testing::ValuesIn(yaml_files_in(k_config_data / "bad")),
+                         name_of_file);
+
+TEST(BadConfigFixture, ThreeMistakesAreAllReportedInFileOrder) {
+  const auto r = load_config_file(k_config_data / "bad" / "three_mistakes.yaml");
+  ASSERT_EQ(r.errors.size(), 3u) << all_errors(r);
+  EXPECT_LT(r.errors[0].line, r.errors[1].line);
+  EXPECT_LT(r.errors[1].line, r.errors[2].line);
+}
+
+// ---- good fixtures
+
+class GoodConfigFixture : public ::testing::TestWithParam<std::string> {};
+
+TEST_P(GoodConfigFixture, LoadsWithoutErrors) {
+  const auto r = load_config_file(k_config_data / "good" / GetParam());
+  EXPECT_TRUE(r.ok()) << all_errors(r);
+  EXPECT_TRUE(r.errors.empty());
+}
+
+INSTANTIATE_TEST_SUITE_P(Files, GoodConfigFixture, ::testing::ValuesIn(yaml_files_in(k_config_data / "good")),
+                         name_of_file);
+
+site_config load_good(const char* name) {
+  auto r = load_config_file(k_config_data / "good" / name);
+  if (!r.ok()) ADD_FAILURE() << name << all_errors(r);
+  return r.config.value_or(site_config{});
+}
+
+TEST(ConfigLoader, MinimalConfigTakesTheDocumentedDefaults) {
+  const site_config c = load_good("minimal.yaml");
+  EXPECT_EQ(c.site, "test-site");
+  EXPECT_EQ(c.broker.uri, "tcp://127.0.0.1:1883");
+  EXPECT_EQ(c.broker.client_id, "dewmargin-test");
+  EXPECT_EQ(c.broker.keepalive_s, 30.0);
+  EXPECT_FALSE(c.broker.tls.has_value());
+  EXPECT_EQ(c.storage.path, "/tmp/dewmargin-test.db");
+  EXPECT_EQ(c.storage.keep_events_days, 730.0);
+  EXPECT_EQ(c.storage.keep_samples_days, 400.0);
+  EXPECT_EQ(c.publish.prefix, "dewmargin");
+  EXPECT_EQ(c.publish.min_interval_s, 5.0);
+  EXPECT_EQ(c.logging.level, "info");
+  EXPECT_EQ(c.plausibility.humidity_pct.max, 103.0);
+
+  ASSERT_EQ(c.loops.size(), 1u);
+  const loop_config& l = c.loops[0];
+  EXPECT_EQ(l.id, "loop-a");
+  EXPECT_EQ(l.supply_temp.topic, "plant/loop-a/supply");
+  EXPECT_EQ(l.supply_temp.unit, input_unit::celsius);
+  EXPECT_FALSE(l.return_temp.has_value());
+  EXPECT_FALSE(l.flow.has_value());
+  EXPECT_EQ(l.setpoint.topic, "plant/loop-a/supply-sp/set");
+  EXPECT_EQ(l.setpoint.min_c, 15.0);
+  EXPECT_EQ(l.setpoint.max_c, 20.0);
+  EXPECT_EQ(l.setpoint.reset_margin_k, 2.0);
+  EXPECT_EQ(l.setpoint.fall_k_per_min, 0.2);
+  EXPECT_EQ(l.stale_after_s, 180.0);
+
+  ASSERT_EQ(c.zones.size(), 1u);
+  const zone_config& z = c.zones[0];
+  EXPECT_EQ(z.id, "room-1");
+  EXPECT_EQ(z.loop, "loop-a");
+  EXPECT_EQ(z.air_temp.topic, "bldg/room-1/temp");
+  EXPECT_EQ(z.air_temp.field, "");
+  EXPECT_EQ(z.air_temp.unit, input_unit::celsius);
+  EXPECT_FALSE(z.air_temp.stale_after_s.has_value());
+  ASSERT_EQ(z.humidity.size(), 1u);
+  EXPECT_EQ(z.humidity[0].unit, input_unit::percent);
+  EXPECT_TRUE(z.surfaces.empty());
+  EXPECT_FALSE(z.valve.has_value());
+  EXPECT_FALSE(z.condensation_switch.has_value());
+  EXPECT_FALSE(z.window_contact.has_value());
+  EXPECT_EQ(z.thresholds.margin_warn_k, 2.0);
+  EXPECT_EQ(z.thresholds.margin_alarm_k, 1.0);
+  EXPECT_EQ(z.thresholds.hysteresis_k, 0.3);
+  EXPECT_EQ(z.thresholds.confirm_s, 30.0);
+  EXPECT_EQ(z.thresholds.stale_after_s, 180.0);
+  EXPECT_EQ(z.thresholds.trend_window_s, 600.0);
+  EXPECT_TRUE(c.dehumidifiers.empty());
+}
+
+TEST(ConfigLoader, JsonSensorFeedsSeveralInputsFromOneTopicByField) {
+  const site_config c = load_good("json_field_sensor.yaml");
+  EXPECT_EQ(c.broker.uri, "ssl://broker.test:8883");
+  EXPECT_EQ(c.broker.username, "gateway");
+  EXPECT_EQ(c.broker.password_file, "secrets/broker.secret");  // relative, not checked at load
+  ASSERT_TRUE(c.broker.tls.has_value());
+  EXPECT_EQ(c.broker.tls->ca_file, "tls/ca.pem");
+  EXPECT_EQ(c.broker.tls->cert_file, "tls/client.pem");
+  EXPECT_EQ(c.broker.tls->key_file, "tls/client.key");
+  EXPECT_EQ(c.broker.keepalive_s, 45.0);
+  EXPECT_EQ(c.storage.keep_events_days, 365.0);
+  EXPECT_EQ(c.publish.prefix, "site/dewmargin");
+  EXPECT_EQ(c.publish.min_interval_s, 10.0);
+  EXPECT_EQ(c.logging.level, "debug");
+
+  ASSERT_EQ(c.loops.size(), 1u);
+  const loop_config& l = c.loops[0];
+  EXPECT_EQ(l.supply_temp.topic, "plant/loop-a/status");
+  EXPECT_EQ(l.supply_temp.field, "/supply_c");
+  ASSERT_TRUE(l.return_temp.has_value());
+  EXPECT_EQ(l.return_temp->field, "/return_c");
+  ASSERT_TRUE(l.flow.has_value());
+  EXPECT_EQ(l.flow->unit, input_unit::cubic_metres_per_hour);
+  EXPECT_EQ(l.stale_after_s, 60.0);
+  EXPECT_EQ(l.setpoint.reset_margin_k, 1.5);
+  EXPECT_EQ(l.setpoint.fall_k_per_min, 0.1);
+
+  ASSERT_EQ(c.zones.size(), 1u);
+  const zone_config& z = c.zones[0];
+  EXPECT_EQ(z.air_temp.topic, "bldg/room-1/multisensor");
+  EXPECT_EQ(z.air_temp.field, "/temperature");
+  ASSERT_EQ(z.humidity.size(), 1u);
+  EXPECT_EQ(z.humidity[0].topic, "bldg/room-1/multisensor");
+  EXPECT_EQ(z.humidity[0].field, "/humidity");
+  ASSERT_TRUE(z.humidity[0].stale_after_s.has_value());
+  EXPECT_EQ(*z.humidity[0].stale_after_s, 0.0);  // never stale
+  ASSERT_EQ(z.surfaces.size(), 1u);
+  EXPECT_EQ(z.surfaces[0].field, "/ceiling/surface_c");
+  ASSERT_TRUE(z.condensation_switch.has_value());
+  EXPECT_EQ(z.condensation_switch->field, "/wet");
+  // YAML's true and 1 are kept as the payload text they stand for.
+  EXPECT_EQ(z.condensation_switch->active, (std::vector<std::string>{"true", "1", "wet"}));
+  EXPECT_EQ(z.condensation_switch->unit, input_unit::none);
+  ASSERT_TRUE(z.window_contact.has_value());
+  EXPECT_EQ(z.window_contact->active, (std::vector<std::string>{"open"}));
+  ASSERT_TRUE(z.valve.has_value());
+  EXPECT_EQ(z.valve->topic, "bldg/room-1/valve/set");
+  EXPECT_EQ(z.valve->open_payload, "100");
+  EXPECT_EQ(z.valve->closed_payload, "0");
+  EXPECT_EQ(z.valve->reopen_after_s, 900.0);
+}
+
+TEST(ConfigLoader, ReadsFahrenheitFractionAndFlowUnits) {
+  const site_config c = load_good("fahrenheit_fraction.yaml");
+  ASSERT_EQ(c.loops.size(), 2u);
+  EXPECT_EQ(c.loops[0].supply_temp.unit, input_unit::fahrenheit);
+  EXPECT_EQ(c.loops[0].return_temp->unit, input_unit::fahrenheit);
+  EXPECT_EQ(c.loops[0].flow->unit, input_unit::us_gallons_per_minute);
+  EXPECT_EQ(c.loops[1].supply_temp.unit, input_unit::celsius);
+  EXPECT_EQ(c.loops[1].flow->unit, input_unit::litres_per_second);
+  EXPECT_EQ(c.loops[1].setpoint.min_c, c.loops[1].setpoint.max_c);  // a fixed setpoint is allowed
+  ASSERT_EQ(c.zones.size(), 2u);
+  EXPECT_EQ(c.zones[0].air_temp.unit, input_unit::fahrenheit);
+  EXPECT_EQ(c.zones[0].humidity[0].unit, input_unit::fraction);
+  ASSERT_EQ(c.zones[0].surfaces.size(), 2u);
+  EXPECT_EQ(c.zones[0].surfaces[0].unit, input_unit::fahrenheit);
+  EXPECT_EQ(c.zones[0].surfaces[1].unit, input_unit::celsius);
+  EXPECT_EQ(c.zones[1].humidity[0].unit, input_unit::percent);
+}
+
+TEST(ConfigLoader, MergesDefaultsWithZoneOverrides) {
+  const site_config c = load_good("multiple_humidity.yaml");
+  EXPECT_EQ(c.defaults.margin_warn_k, 2.5);
+  EXPECT_EQ(c.defaults.trend_window_s, 900.0);
+  ASSERT_EQ(c.zones.size(), 2u);
+
+  const band_thresholds& open_plan = c.zones[0].thresholds;
+  EXPECT_EQ(open_plan.margin_warn_k, 3.0);   // zone's own
+  EXPECT_EQ(open_plan.confirm_s, 45.0);      // zone's own
+  EXPECT_EQ(open_plan.margin_alarm_k, 1.2);  // from defaults
+  EXPECT_EQ(open_plan.hysteresis_k, 0.4);
+  EXPECT_EQ(open_plan.stale_after_s, 120.0);
+  EXPECT_EQ(open_plan.trend_window_s, 900.0);
+
+  const band_thresholds& meeting = c.zones[1].thresholds;
+  EXPECT_EQ(meeting.margin_warn_k, 2.5);
+  EXPECT_EQ(meeting.margin_alarm_k, 1.2);
+  EXPECT_EQ(meeting.confirm_s, 20.0);
+
+  ASSERT_EQ(c.zones[0].humidity.size(), 2u);
+  EXPECT_EQ(c.zones[0].humidity[0].topic, "bldg/open-plan/rh-north");
+  EXPECT_FALSE(c.zones[0].humidity[0].stale_after_s.has_value());
+  EXPECT_EQ(c.zones[0].humidity[1].topic, "bldg/open-plan/rh-south");
+  EXPECT_EQ(c.zones[0].humidity[1].stale_after_s.value_or(-1.0), 600.0);
+  EXPECT_EQ(c.zones[0].surfaces.size(), 2u);
+
+  ASSERT_EQ(c.loops.size(), 2u);
+  EXPECT_EQ(c.loops[0].stale_after_s, 120.0);  // defaults.stale_after_s
+  EXPECT_EQ(c.loops[1].stale_after_s, 300.0);  // the loop's own
+
+  EXPECT_EQ(c.plausibility.air_temp_c.min, -10.0);
+  EXPECT_EQ(c.plausibility.air_temp_c.max, 50.0);
+  EXPECT_EQ(c.plausibility.humidity_pct.max, 101.0);
+  EXPECT_EQ(c.plausibility.water_c.max, 90.0);  // untouched default
+
+  ASSERT_EQ(c.dehumidifiers.size(), 1u);
+  EXPECT_EQ(c.dehumidifiers[0].zones, (std::vector<std::string>{"open-plan", "meeting"}));
+  EXPECT_EQ(c.dehumidifiers[0].dew_point_request.min_c, 8.0);
+  EXPECT_EQ(c.dehumidifiers[0].dew_point_request.max_c, 14.0);
+  EXPECT_EQ(c.dehumidifiers[0].dew_point_request.offset_k, 3.0);
+}
+
+TEST(ConfigLoader, ExampleConfigOfTheRepositoryIsValid) {
+  const auto r = load_config_file(fs::path(DEWMARGIN_SOURCE_DIR) / "config" / "example.yaml");
+  ASSERT_TRUE(r.ok()) << all_errors(r);
+  const site_config& c = *r.config;
+  EXPECT_EQ(c.loops.size(), 3u);
+  EXPECT_EQ(c.zones.size(), 6u);
+  EXPECT_EQ(c.dehumidifiers.size(), 1u);
+  const auto has = [&](auto pred) { return std::any_of(c.zones.begin(), c.zones.end(), pred); };
+  EXPECT_TRUE(has([](const zone_config& z) { return !z.air_temp.field.empty(); }));
+  EXPECT_TRUE(has([](const zone_config& z) { return z.window_contact.has_value(); }));
+  EXPECT_TRUE(has([](const zone_config& z) { return z.condensation_switch.has_value(); }));
+  EXPECT_TRUE(has([](const zone_config& z) { return z.valve.has_value(); }));
+}
+
+// ---- rules checked on small texts (one error each)
+
+const std::string k_head =
+    "site: s\n"
+    "broker: {uri: tcp://127.0.0.1:1883, client_id: c}\n"
+    "storage: {path: p.db}\n";
+const std::string k_loop =
+    "loops:\n"
+    "  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: p/sp, min_c: 15, max_c: 20}}\n";
+const std::string k_zone =
+    "zones:\n"
+    "  - {id: z1, loop: la, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n";
+const std::string k_zone_block =  // lines 6-10, so a test can add keys to the zone
+    "zones:\n"
+    "  - id: z1\n"
+    "    loop: la\n"
+    "    air_temp: {topic: b/t}\n"
+    "    humidity: {topic: b/h}\n";
+
+struct text_case {
+  const char* name;
+  std::string yaml;
+  int line;
+  int column;
+  const char* message_part;
+};
+
+class ConfigRule : public ::testing::TestWithParam<text_case> {};
+
+TEST_P(ConfigRule, ReportsOneLocatedError) {
+  const text_case& c = GetParam();
+  const auto r = load_config_text(c.yaml, "t.yaml");
+  ASSERT_EQ(r.errors.size(), 1u) << c.name << all_errors(r);
+  EXPECT_FALSE(r.config.has_value());
+  EXPECT_EQ(r.errors[0].line, c.line) << r.errors[0].to_string();
+  EXPECT_EQ(r.errors[0].column, c.column) << r.errors[0].to_string();
+  EXPECT_NE(r.errors[0].message.find(c.message_part), std::string::npos) << r.errors[0].to_string();
+}
+
+const text_case k_rule_cases[] = {
+    {"prefix_wildcard", k_head + "publish: {prefix: dm/#}\n" + k_loop + k_zone, 4, 19,
+     "publish prefix 'dm/#' must not contain the MQTT wildcards"},
+    {"prefix_trailing_slash", k_head + "publish: {prefix: dm/}\n" + k_loop + k_zone, 4, 19,
+     "publish prefix 'dm/' must not start or end with '/'"},
+    {"prefix_empty", k_head + "publish: {prefix: ''}\n" + k_loop + k_zone, 4, 19, "publish prefix must not be empty"},
+    {"tls_on_plain_tcp",
+     "site: s\nbroker: {uri: tcp://h:1883, client_id: c, tls: {ca_file: ca.pem}}\nstorage: {path: p.db}\n" + k_loop +
+         k_zone,
+     2, 43, "'tls' is set but uri 'tcp://h:1883' is not ssl:// or mqtts://"},
+    {"key_without_cert",
+     "site: s\nbroker: {uri: ssl://h:8883, client_id: c, tls: {key_file: k.pem}}\nstorage: {path: p.db}\n" + k_loop +
+         k_zone,
+     2, 49, "'key_file' needs the client certificate in 'cert_file'"},
+    {"password_file_without_username",
+     "site: s\nbroker: {uri: tcp://h, client_id: c, password_file: pw}\nstorage: {path: p.db}\n" + k_loop + k_zone, 2,
+     38, "'password_file' needs a 'username'"},
+    {"uri_without_host",
+     "site: s\nbroker: {uri: 'mqtt://:1883', client_id: c}\nstorage: {path: p.db}\n" + k_loop + k_zone, 2, 15,
+     "must name a host"},
+    {"uri_bad_port", "site: s\nbroker: {uri: 'tcp://h:0', client_id: c}\nstorage: {path: p.db}\n" + k_loop + k_zone, 2,
+     15, "has a bad port '0'"},
+    {"client_id_empty", "site: s\nbroker: {uri: tcp://h, client_id: ''}\nstorage: {path: p.db}\n" + k_loop + k_zone, 2,
+     35, "'client_id' must not be empty"},
+    {"client_id_missing", "site: s\nbroker: {uri: tcp://h}\nstorage: {path: p.db}\n" + k_loop + k_zone, 2, 9,
+     "broker: missing required key 'client_id'"},
+    {"keepalive_fraction",
+     "site: s\nbroker: {uri: tcp://h, client_id: c, keepalive_s: 2.5}\nstorage: {path: p.db}\n" + k_loop + k_zone, 2,
+     51, "'keepalive_s' must be a whole number of seconds"},
+    {"storage_path_missing",
+     "site: s\nbroker: {uri: tcp://h, client_id: c}\nstorage: {keep_events_days: 10}\n" + k_loop + k_zone, 3, 10,
+     "storage: missing required key 'path'"},
+    {"retention_zero",
+     "site: s\nbroker: {uri: tcp://h, client_id: c}\nstorage: {path: p, keep_samples_days: 0}\n" + k_loop + k_zone, 3,
+     39, "'keep_samples_days' must be greater than 0, got 0"},
+    {"logging_level", k_head + "logging: {level: loud}\n" + k_loop + k_zone, 4, 18,
+     "logging level 'loud' is not one of trace, debug, info"},
+    {"plausibility_inverted", k_head + "plausibility: {water_c: {min: 30, max: 30}}\n" + k_loop + k_zone, 4, 31,
+     "plausibility water_c: 'min' (30) must be below 'max' (30)"},
+    {"output_reserved_by_service",
+     k_head +
+         "loops:\n  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: dewmargin/events, min_c: 15, max_c: "
+         "20}}\n" +
+         k_zone,
+     5, 59, "topic 'dewmargin/events' is reserved for the service's own messages under 'dewmargin/'"},
+    {"output_wildcard",
+     k_head + "loops:\n  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: p/#, min_c: 15, max_c: 20}}\n" +
+         k_zone,
+     5, 59, "topic 'p/#' must not contain the MQTT wildcards '+' or '#' (the service publishes to exact topics)"},
+    {"setpoint_min_missing",
+     k_head + "loops:\n  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: p/sp, max_c: 20}}\n" + k_zone, 5, 51,
+     "loop 'la' setpoint: missing required key 'min_c'"},
+    {"fall_rate_zero",
+     k_head +
+         "loops:\n  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: p/sp, min_c: 15, max_c: 20, "
+         "fall_k_per_min: 0}}\n" +
+         k_zone,
+     5, 103, "'fall_k_per_min' must be greater than 0, got 0"},
+    {"flow_unit",
+     k_head +
+         "loops:\n  - {id: la, supply_temp: {topic: p/s}, flow: {topic: p/f, unit: kg/s},\n"
+         "     setpoint: {topic: p/sp, min_c: 15, max_c: 20}}\n" +
+         k_zone,
+     5, 66, "unit 'kg/s' is not valid for a flow input; use 'L/s', 'm3/h' or 'gpm'"},
+    {"temperature_unit",
+     k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t, unit: K}, humidity: {topic: b/h}}\n", 7,
+     53, "unit 'K' is not valid for a temperature input; use 'C' or 'F'"},
+    {"pointer_bad_escape",
+     k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t, field: /a~2}, humidity: {topic: b/h}}\n",
+     7, 54, "'field' '/a~2' is not a valid JSON pointer"},
+    {"unit_on_switch",
+     k_head + k_loop + k_zone_block + "    condensation_switch: {topic: b/w, active: [wet], unit: C}\n", 11, 54,
+     "unknown key 'unit' in zone 'z1' condensation_switch"},
+    {"active_missing", k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win}\n", 11, 21,
+     "zone 'z1' window_contact: missing required key 'active'"},
+    {"active_not_a_list", k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: open}\n", 11, 44,
+     "'active' must be a non-empty list of payloads"},
+    {"valve_same_payloads", k_head + k_loop + k_zone_block + "    valve: {topic: b/v, open: x, closed: x}\n", 11, 42,
+     "zone 'z1' valve: 'open' and 'closed' payloads must differ"},
+    {"zone_id_with_slash",
+     k_head + k_loop + "zones:\n  - {id: a/b, loop: la, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n", 7, 10,
+     "zone id 'a/b' must not contain '/', '+' or '#'"},
+    {"humidity_empty_list", k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t}, humidity: []}\n",
+     7, 58, "'humidity' must be a map like { topic: ... } or a list of them (at least one)"},
+    {"topic_empty", k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: ''}, humidity: {topic: b/h}}\n",
+     7, 42, "'topic' must not be empty"},
+    {"same_topic_same_field",
+     k_head + k_loop +
+         "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/j, field: /t}, humidity: {topic: b/j, field: /t}}\n",
+     7, 77, "topic 'b/j' field '/t' is already read by zone 'z1' air_temp (line 7)"},
+    {"duplicate_loop_id",
+     k_head + k_loop + "  - {id: la, supply_temp: {topic: p/s2}, setpoint: {topic: p/sp2, min_c: 15, max_c: 20}}\n" +
+         k_zone,
+     6, 10, "duplicate loop id 'la' (first defined at line 5)"},
+    {"zones_empty", k_head + k_loop + "zones: []\n", 6, 8, "'zones' must list at least one zone"},
+    {"zones_missing", k_head + k_loop, 1, 1, "missing required key 'zones'"},
+    {"dehumidifier_range",
+     k_head + k_loop + k_zone +
+         "dehumidifiers:\n  - {id: d, zones: [z1], dew_point_request: {topic: p/d, min_c: 14, max_c: 8}}\n",
+     9, 65, "dehumidifier 'd' dew_point_request: 'min_c' (14) must not be above 'max_c' (8)"},
+    {"dehumidifier_no_zones",
+     k_head + k_loop + k_zone +
+         "dehumidifiers:\n  - {id: d, zones: [], dew_point_request: {topic: p/d, min_c: 8, max_c: 14}}\n",
+     9, 20, "'zones' must be a non-empty list of zone ids"},
+    {"unknown_key_far_from_all", k_head + "colour: blue\n" + k_loop + k_zone, 4, 1,
+     "unknown key 'colour' at the top level (expected one of: site, broker"},
+    {"misspelt_required_key_reported_once",
+     k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t}, humidty: {topic: b/h}}\n", 7, 48,
+     "unknown key 'humidty' in zone 'z1'; did you mean 'humidity'?"},
+    {"number_not_finite", k_head + "defaults: {confirm_s: .inf}\n" + k_loop + k_zone, 4, 23,
+     "'confirm_s' must be a number, got '.inf'"},
+    {"number_given_a_map", k_head + "defaults: {confirm_s: {a: 1}}\n" + k_loop + k_zone, 4, 23,
+     "'confirm_s' must be a number, got a map"},
+    {"margins_inverted_in_defaults_reported_once",
+     k_head + "defaults: {margin_warn_k: 1.0, margin_alarm_k: 1.0}\n" + k_loop + k_zone +
+         "  - {id: z2, loop: la, air_temp: {topic: b/t2}, humidity: {topic: b/h2}}\n",
+     4, 48, "defaults: margin_alarm_k (1) must be below margin_warn_k (1)"},
+    {"zone_warn_below_default_alarm",
+     k_head + k_loop +
+         "zones:\n  - {id: z1, loop: la, margin_warn_k: 0.5, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n",
+     7, 39, "zone 'z1': margin_alarm_k (1) must be below margin_warn_k (0.5), and margin_alarm_k comes from defaults"},
+    {"merge_key", k_head + "<<: {site: t}\n" + k_loop + k_zone, 4, 1, "YAML merge keys ('<<') are not supported"},
+    {"second_document", k_head + k_loop + k_zone + "---\nsite: other\n", 9, 1, "only one YAML document is expected"},
+    {"top_level_list", "- site: s\n", 1, 1, "the top level must be a map of sections"},
+    {"empty_text", "", 1, 1, "the file holds no config"},
+    {"tab_indentation", k_head + "loops:\n\t- id: la\n", 5, 2, "YAML syntax error"},
+};
+
+std::string name_of_case(const ::testing::TestParamInfo<text_case>& case_info) { return case_info.param.name; }
+
+INSTANTIATE_TEST_SUITE_P(Cases, ConfigRule, ::testing::ValuesIn(k_rule_cases), name_of_case);
+
+TEST(ConfigLoader, QuotedNumbersAreReadAsNumbers) {
+  const auto r = load_config_text(k_head + "defaults: {confirm_s: '45'}\n" + k_loop + k_zone, "t.yaml");
+  ASSERT_TRUE(r.ok()) << all_errors(r);
+  EXPECT_EQ(r.config->zones[0].thresholds.confirm_s, 45.0);
+}
+
+TEST(ConfigLoader, ReportsErrorsInFileOrderWhateverTheSectionOrder) {
+  // zones before loops before defaults: the readers take defaults first, the report stays in file order.
+  const std::string yaml =
+      "zones:\n"
+      "  - {id: z1, loop: nope, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n"
+      "loops:\n"
+      "  - {id: la, supply_temp: {topic: p/s}, setpoint: {topic: p/sp, min_c: 25, max_c: 20}}\n"
+      "defaults: {confirm_s: -1}\n" +
+      k_head;
+  const auto r = load_config_text(yaml, "t.yaml");
+  ASSERT_EQ(r.errors.size(), 3u) << all_errors(r);
+  EXPECT_EQ(r.errors[0].to_string(), "t.yaml:2:20: zone 'z1': unknown loop 'nope' (known loops: la)");
+  EXPECT_EQ(r.errors[1].to_string(), "t.yaml:4:72: loop 'la' setpoint: 'min_c' (25) must not be above 'max_c' (20)");
+  EXPECT_EQ(r.errors[2].to_string(), "t.yaml:5:23: 'confirm_s' must not be negative, got -1");
+}
+
+TEST(ConfigLoader, JudgesAZoneThatWritesBothMarginsEvenWhenTheDefaultIsBad) {
+  const std::string yaml =
+      k_head + "defaults: {margin_warn_k: x}\n" + k_loop +
+      "zones:\n  - {id: z1, loop: la, margin_warn_k: 1, margin_alarm_k: 2, air_temp: {topic: b/t}, "
+      "humidity: {topic: b/h}}\n";
+  const auto r = load_config_text(yaml, "t.yaml");
+  ASSERT_EQ(r.errors.size(), 2u) << all_errors(r);
+  EXPECT_EQ(r.errors[0].to_string(), "t.yaml:4:27: 'margin_warn_k' must be a number, got 'x'");
+  EXPECT_EQ(r.errors[1].to_string(), "t.yaml:8:58: zone 'z1': margin_alarm_k (2) must be below margin_warn_k (1)");
+}
+
+TEST(ConfigLoader, UnusableIdsCauseNoSecondErrorAtTheirReferences) {
+  const std::string yaml =
+      k_head +
+      "loops:\n  - {id: l/a, supply_temp: {topic: p/s}, setpoint: {topic: p/sp, min_c: 15, max_c: 20}}\n"
+      "zones:\n  - {id: z1, loop: l/a, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n";
+  const auto r = load_config_text(yaml, "t.yaml");
+  ASSERT_EQ(r.errors.size(), 1u) << all_errors(r);
+  EXPECT_EQ(r.errors[0].line, 5);
+}
+
+TEST(ConfigLoader, UnreadableFileGivesOneUnlocatedError) {
+  const fs::path missing = k_config_data / "no-such-file.yaml";
+  const auto r = load_config_file(missing);
+  ASSERT_EQ(r.errors.size(), 1u);
+  EXPECT_EQ(r.errors[0].line, 0);
+  EXPECT_EQ(r.errors[0].to_string(), missing.string() + ": cannot read: No such file or directory");
+
+  const auto dir = load_config_file(k_config_data);
+  ASSERT_EQ(dir.errors.size(), 1u);
+  EXPECT_EQ(dir.errors[0].to_string(), k_config_data.string() + ": cannot read: Is a directory");
+}
+
+TEST(ConfigDiagnostic, FormatsWithAndWithoutPlace) {
+  EXPECT_EQ((config_diagnostic{"a.yaml", 3, 7, "bad"}).to_string(), "a.yaml:3:7: bad");
+  EXPECT_EQ((config_diagnostic{"a.yaml", 0, 0, "cannot read: x"}).to_string(), "a.yaml: cannot read: x");
+}
+
+}  // namespace
+}  // namespace dewmargin
