@@ -2,34 +2,7 @@
 # `dewmargin check`: exit codes, summary on stdout, located errors on stderr.
 # Arguments: $1 dewmargin binary, $2 tests/data directory, $3 source directory.
 set -euo pipefail
-bin=$(cd "$(dirname "$1")" && pwd)/$(basename "$1")  # absolute: step 4 changes directory
-data=$2
-src=$3
-work=$(mktemp -d)
-trap 'rm -rf "$work"' EXIT
-
-failures=0
-fail() {
-  echo "FAIL: $*" >&2
-  failures=$((failures + 1))
-}
-
-# Runs the binary with the given arguments; records stdout, stderr and the exit code
-# without letting `set -e` stop the script on the expected non-zero exits.
-run() {
-  set +e
-  "$bin" "$@" >"$work/out" 2>"$work/err"
-  rc=$?
-  set -e
-}
-
-expect_rc() {
-  [[ $rc -eq $1 ]] || fail "$2: exit code $rc, expected $1 (stderr: $(head -c 400 "$work/err"))"
-}
-
-expect_line() {  # file, extended regex, description
-  grep -Eq -- "$2" "$1" || fail "$3: no line matching '$2' in $(basename "$1"): $(head -c 600 "$1")"
-}
+source "$(dirname "$0")/cli_lib.sh"
 
 # 1. The example config is valid and summarised.
 example=$src/config/example.yaml
@@ -75,8 +48,4 @@ lines=$(wc -l <"$work/err")
 (cd "$data/config/good" && "$bin" check minimal.yaml >"$work/out" 2>"$work/err") || fail "relative path: exit $?"
 expect_line "$work/out" '^minimal\.yaml: ok$' "relative path"
 
-if ((failures)); then
-  echo "test_check.sh: $failures expectation(s) broken" >&2
-  exit 1
-fi
-echo "test_check.sh: all expectations met"
+finish

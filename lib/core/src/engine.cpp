@@ -46,7 +46,8 @@ struct input_slot {
   double stale_after_s = 0.0;      // 0: never stale
   std::optional<double> value;     // last good value, core units
   bool active = false;             // switches: last good state
-  std::optional<timestamp> last_reading;
+  std::optional<timestamp> last_reading;  // last good reading
+  std::optional<timestamp> last_message;  // last payload of any kind
   input_status status = input_status::awaiting;
   std::string bad_reason;
 
@@ -471,6 +472,7 @@ struct engine::state {
     std::string reason;
     double value = 0.0;
     bool active = false;
+    s.last_message = now;
     if (s.last_reading && reading_ts < *s.last_reading) {
       reason = "reading older than the last one (" + format_iso8601_utc(reading_ts) + " < " +
                format_iso8601_utc(*s.last_reading) + ")";
@@ -603,6 +605,9 @@ struct engine::state {
     const double since_start_s = seconds_between(start, now);
     for (input_slot& s : slots) {
       if (s.stale_after_s <= 0.0 || s.fresh(now)) continue;
+      // An input that keeps sending bad payloads is bad, not silent.
+      const bool still_talking = s.last_message && seconds_between(*s.last_message, now) < s.stale_after_s;
+      if (s.status == input_status::bad && still_talking) continue;
       if (s.last_reading) {
         if (s.status == input_status::stale) continue;
         emit_input_event(out, now, s, s.status, input_status::stale,
@@ -766,6 +771,7 @@ void engine::adopt(const engine& previous, timestamp now, engine_output& out) {
       s.value = old.value;
       s.active = old.active;
       s.last_reading = old.last_reading;
+      s.last_message = old.last_message;
       s.status = old.status;
       s.bad_reason = old.bad_reason;
     }
