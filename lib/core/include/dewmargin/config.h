@@ -131,6 +131,16 @@ struct logging_config {
   std::string level = "info";              // trace, debug, info, warn, error, critical, off
 };
 
+// Where the service takes "now" from. `wall`: the system clock (the default, and right for
+// live plants). `readings`: event time, the ISO 8601 time at `field` of each reading's JSON
+// payload; the once-a-second tick follows that time (simulators, recorded feeds, sensors
+// that timestamp their readings). Event time stands still while no reading arrives.
+enum class clock_source { wall, readings };
+struct clock_config {
+  clock_source source = clock_source::wall;
+  std::string field = "/ts";
+};
+
 struct site_config {
   std::string site;
   broker_config broker;
@@ -139,6 +149,7 @@ struct site_config {
   band_thresholds defaults;
   plausibility_config plausibility;
   logging_config logging;
+  clock_config clock;
   std::vector<loop_config> loops;
   std::vector<zone_config> zones;
   std::vector<dehumidifier_config> dehumidifiers;
