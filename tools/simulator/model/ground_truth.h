@@ -1,0 +1,43 @@
+#pragma once
+// What really happened, from the model's noiseless state: how long each chilled surface was
+// colder than the dew point of its room air (water condenses on it), and its worst margin.
+// The service never sees these numbers; they judge it.
+#include <map>
+#include <string>
+#include <vector>
+
+#include "model/plant_model.h"
+
+namespace dewmargin::sim {
+
+struct zone_truth {
+  std::string zone;
+  double condensing_s = 0.0;     // time with surface < dew point
+  double min_margin_k = 1e9;     // lowest surface − dew point seen
+  double min_margin_at_s = 0.0;  // time of day of that lowest margin
+};
+
+class ground_truth {
+ public:
+  explicit ground_truth(const building& b);
+
+  // After a step ending at t_s: credits dt_s to every surface below its dew point, and to
+  // each incident label active at that time ("no incident" when none is).
+  void record(double t_s, double dt_s, const plant_model& plant, const scenario& s);
+
+  [[nodiscard]] const std::vector<zone_truth>& zones() const { return zones_; }
+  [[nodiscard]] double total_condensing_min() const;
+  // Zone-minutes of condensation while each incident kind was active (overlaps count for each).
+  [[nodiscard]] const std::map<std::string, double>& condensing_min_by_incident() const { return by_incident_; }
+  // Lowest true margin of any zone at the last recorded step, and which zone.
+  [[nodiscard]] std::size_t worst_zone_now() const { return worst_now_; }
+  [[nodiscard]] double worst_margin_now_k() const { return worst_margin_now_k_; }
+
+ private:
+  std::vector<zone_truth> zones_;
+  std::map<std::string, double> by_incident_;
+  std::size_t worst_now_ = 0;
+  double worst_margin_now_k_ = 0.0;
+};
+
+}  // namespace dewmargin::sim

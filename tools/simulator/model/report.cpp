@@ -1,0 +1,154 @@
+#include "model/report.h"
+
+#include <cstdio>
+#include <nlohmann/json.hpp>
+#include <sstream>
+
+namespace dewmargin::sim {
+namespace {
+
+std::string fixed(double v, int decimals) {
+  char buf[48];
+  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+  return buf;
+}
+
+std::string signed_k(double v) {
+  char buf[48];
+  std::snprintf(buf, sizeof buf, "%+.2f K", v);
+  return buf;
+}
+
+std::string incidents_now(const simulation& sim) {
+  const auto active = sim.script().active_at(sim.now_s());
+  if (active.empty()) return "none";
+  std::string text;
+  for (const incident* i : active) text += (text.empty() ? "" : "; ") + i->description;
+  return text;
+}
+
+double rounded(double v, double step) {
+  const double r = static_cast<double>(static_cast<long long>(v / step + (v >= 0 ? 0.5 : -0.5))) * step;
+  return r == 0.0 ? 0.0 : r;
+}
+
+}  // namespace
+
+std::string status_line(const simulation& sim) {
+  std::ostringstream os;
+  os << "[" << clock_text(sim.now_s()) << "] ";
+  const auto& plant = sim.plant();
+  if (sim.options().with_service) {
+    const watched_zone* worst = sim.watch().worst_zone();
+    if (worst) {
+      os << "worst " << worst->id << " " << signed_k(*worst->margin_k) << " " << worst->band;
+    } else {
+      os << "worst: no margin known yet";
+    }
+    const int unknown = sim.watch().unknown_zones();
+    if (unknown > 0) os << " (" << unknown << " unknown)";
+    const auto& t = sim.watch().tally();
+    os << " | alarms " << t.alarms_raised << ", acked " << t.acknowledged;
+  } else {
+    const std::size_t w = sim.truth().worst_zone_now();
+    os << "worst " << plant.layout().zones[w].id << " " << signed_k(sim.truth().worst_margin_now_k()) << " (true)";
+  }
+  int closed = 0;
+  for (const auto& z : plant.zones()) closed += z.valve_open ? 0 : 1;
+  os << " | valves closed " << closed << " | supply";
+  for (const auto& l : plant.loops()) os << " " << fixed(l.supply_c, 1);
+  os << " °C | wet " << fixed(sim.truth().total_condensing_min(), 1) << " zone-min | " << incidents_now(sim);
+  return os.str();
+}
+
+std::string summary_text(const simulation& sim) {
+  std::ostringstream os;
+  const auto& sc = sim.script();
+  const auto& plant = sim.plant();
+  os << "== simulated day '" << sc.name << "' " << sc.date << " " << clock_text(sc.start_s) << "-"
+     << clock_text(sc.end_s) << " UTC, building " << plant.layout().name << ", "
+     << (sim.options().with_service ? "supervised by the service" : "baseline without the service") << "\n";
+  os << "condensation (ground truth: minutes a chilled surface was colder than its room's dew point)\n";
+  os << "  total " << fixed(sim.truth().total_condensing_min(), 1) << " zone-min\n";
+  for (const auto& z : sim.truth().zones()) {
+    char line[160];
+    std::snprintf(line, sizeof line, "  %-18s %7.1f min   lowest margin %+6.2f K at %s\n", z.zone.c_str(),
+                  z.condensing_s / 60.0, z.min_margin_k, clock_text(z.min_margin_at_s).c_str());
+    os << line;
+  }
+  if (!sim.truth().condensing_min_by_incident().empty()) {
+    os << "  while:";
+    for (const auto& kv : sim.truth().condensing_min_by_incident()) {
+      os << " " << kv.first << " " << fixed(kv.second, 1);
+    }
+    os << " (zone-min)\n";
+  }
+  if (!sim.options().with_service) return os.str();
+  const auto& t = sim.watch().tally();
+  os << "service (its events on MQTT): alarms raised " << t.alarms_raised << ", acknowledged " << t.acknowledged;
+  if (sim.options().ack_after_s > 0) {
+    os << " (by '" << sim.options().operator_name << "', the simulated operator, "
+       << fixed(sim.options().ack_after_s / 60.0, 0) << " min after each)";
+  }
+  os << "\n  valve actions " << t.valves_closed + t.valves_opened << " (" << t.valves_closed << " closed, "
+     << t.valves_opened << " opened), setpoint events " << t.setpoint_events << ", dehumidifier requests "
+     << t.dehumidify_events << ", input events " << t.input_events << ", rejected commands " << t.rejected << "\n";
+  const auto& c = sim.commands();
+  os << "plant commands received:";
+  for (const auto& kv : c.setpoint_by_loop) {
+    os << " " << kv.first << " " << fixed(kv.second.min, 1) << "-" << fixed(kv.second.max, 1) << " °C;";
+  }
+  if (c.dew_point_request.seen) {
+    os << " " << plant.layout().doas.id << " dew point " << fixed(c.dew_point_request.min, 1) << "-"
+       << fixed(c.dew_point_request.max, 1) << " °C;";
+  }
+  os << " valves " << c.valve_closings << " closed, " << c.valve_openings << " opened";
+  if (c.bad_commands > 0) os << "; " << c.bad_commands << " unreadable (last: " << c.last_bad_command << ")";
+  os << "\n";
+  return os.str();
+}
+
+std::string summary_json(const simulation& sim) {
+  nlohmann::json j;
+  const auto& sc = sim.script();
+  j["scenario"] = sc.name;
+  j["date"] = sc.date;
+  j["start"] = format_iso8601_utc(sc.at(sc.start_s));
+  j["end"] = format_iso8601_utc(sc.at(sc.end_s));
+  j["building"] = sim.plant().layout().name;
+  j["mode"] = sim.options().with_service ? "service" : "baseline";
+  j["seed"] = sim.options().seed;
+  j["condensation_zone_min"] = rounded(sim.truth().total_condensing_min(), 0.01);
+  nlohmann::json zones = nlohmann::json::object();
+  for (const auto& z : sim.truth().zones()) {
+    zones[z.zone] = {{"condensation_min", rounded(z.condensing_s / 60.0, 0.01)},
+                     {"lowest_margin_k", rounded(z.min_margin_k, 0.01)},
+                     {"lowest_margin_at", clock_text(z.min_margin_at_s)}};
+  }
+  j["zones"] = zones;
+  nlohmann::json by = nlohmann::json::object();
+  for (const auto& kv : sim.truth().condensing_min_by_incident()) by[kv.first] = rounded(kv.second, 0.01);
+  j["condensation_zone_min_while"] = by;
+  if (sim.options().with_service) {
+    const auto& t = sim.watch().tally();
+    j["service"] = {{"alarms_raised", t.alarms_raised},     {"acknowledged", t.acknowledged},
+                    {"acks_sent", t.acks_sent},             {"valves_closed", t.valves_closed},
+                    {"valves_opened", t.valves_opened},     {"setpoint_events", t.setpoint_events},
+                    {"dehumidify_events", t.dehumidify_events}, {"input_events", t.input_events},
+                    {"rejected", t.rejected},               {"band_events", t.band_events},
+                    {"alarms_by_zone", t.alarms_by_zone},   {"bands_entered", t.bands_entered}};
+    const auto& c = sim.commands();
+    nlohmann::json sp = nlohmann::json::object();
+    for (const auto& kv : c.setpoint_by_loop) sp[kv.first] = {{"min_c", kv.second.min}, {"max_c", kv.second.max}};
+    j["commands"] = {{"setpoint_c", sp},
+                     {"valve_closings", c.valve_closings},
+                     {"valve_openings", c.valve_openings},
+                     {"bad_commands", c.bad_commands}};
+    if (c.dew_point_request.seen) {
+      j["commands"]["dew_point_request_c"] = {{"min_c", c.dew_point_request.min}, {"max_c", c.dew_point_request.max}};
+    }
+  }
+  return j.dump();
+}
+
+}  // namespace dewmargin::sim
