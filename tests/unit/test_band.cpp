@@ -140,10 +140,10 @@ TEST(BandTracker, RestartsTheConfirmTimerWhenTheConditionClears) {
 
 TEST(BandTracker, RestartsTheConfirmTimerAfterAMissingMargin) {
   band_tracker t = tracker_in(1.5);
-  t.update(margin(0.5), at_s(10));                           // alarm timer starts
-  EXPECT_EQ(t.update(missing(), at_s(20)), band::unknown);   // timers reset
-  EXPECT_EQ(t.update(margin(1.5), at_s(21)), band::tight);   // straight to the margin's band
-  EXPECT_EQ(t.update(margin(0.5), at_s(22)), band::tight);   // alarm timer starts again
+  t.update(margin(0.5), at_s(10));                          // alarm timer starts
+  EXPECT_EQ(t.update(missing(), at_s(20)), band::unknown);  // timers reset
+  EXPECT_EQ(t.update(margin(1.5), at_s(21)), band::tight);  // straight to the margin's band
+  EXPECT_EQ(t.update(margin(0.5), at_s(22)), band::tight);  // alarm timer starts again
   EXPECT_EQ(t.update(margin(0.5), at_s(41)), band::tight) << "not confirmed from the dip before the fault";
   EXPECT_EQ(t.update(margin(0.5), at_s(52)), band::alarm);
 }

@@ -54,11 +54,9 @@ struct move_case {
 
 TEST(ChangeGate, NeedsAMoveOfAtLeastFiveHundredths) {
   const std::vector<move_case> cases = {
-      {"up 0.05", 20.0, 20.05, true},        {"up 0.04", 20.0, 20.04, false},
-      {"up 0.049", 20.0, 20.049, false},     {"down 0.05", 20.0, 19.95, true},
-      {"down 0.04", 20.0, 19.96, false},     {"up 0.05 from 0.1", 0.1, 0.15, true},
-      {"down 0.05 to 0", 0.05, 0.0, true},   {"across zero", 0.02, -0.03, true},
-      {"up 1", 20.0, 21.0, true},
+      {"up 0.05", 20.0, 20.05, true},      {"up 0.04", 20.0, 20.04, false},    {"up 0.049", 20.0, 20.049, false},
+      {"down 0.05", 20.0, 19.95, true},    {"down 0.04", 20.0, 19.96, false},  {"up 0.05 from 0.1", 0.1, 0.15, true},
+      {"down 0.05 to 0", 0.05, 0.0, true}, {"across zero", 0.02, -0.03, true}, {"up 1", 20.0, 21.0, true},
   };
   for (const auto& c : cases) {
     const gate g = committed({c.from, std::nullopt});

@@ -35,7 +35,7 @@ struct number_case {
 TEST(DecodeNumber, ReadsBareNumbersWithBlanksAndExponents) {
   const std::vector<number_case> cases = {
       {"21.5", 21.5},   {"  21.5", 21.5}, {"21.5 \r\n", 21.5}, {"\t-3", -3.0}, {"+4", 4.0},
-      {"2.15e1", 21.5}, {"1E2", 100.0},   {"215e-1", 21.5},    {"0", 0.0},    {".5", 0.5},
+      {"2.15e1", 21.5}, {"1E2", 100.0},   {"215e-1", 21.5},    {"0", 0.0},     {".5", 0.5},
   };
   for (const auto& c : cases) {
     const auto v = decode_number(c.payload, bare(), input_kind::air_temp);
@@ -90,7 +90,7 @@ TEST(DecodeNumber, ReadsAJsonFieldByPointer) {
       {"/a/b", R"({"a": {"b": -3.25}})", -3.25},
       {"/values/1", R"({"values": [20.0, 21.0]})", 21.0},
       {"/t", R"({"t": 22})", 22.0},
-      {"/t", R"({"t": "21.5"})", 21.5},    // a number sent as a string
+      {"/t", R"({"t": "21.5"})", 21.5},  // a number sent as a string
       {"/t", R"({"t": " 2.15e1 "})", 21.5},
   };
   for (const auto& c : cases) {
@@ -114,8 +114,7 @@ TEST(DecodeNumber, RejectsJsonPayloadsWithoutANumberAtTheField) {
       {{"not JSON", "{t: 21.5}", error_code::parse_error, "payload is not valid JSON"}, "/t"},
       {{"empty", "", error_code::parse_error, "payload is not valid JSON"}, "/t"},
       {{"number out of range", R"({"t": 1e400})", error_code::parse_error, "payload is not valid JSON"}, "/t"},
-      {{"string not a number", R"({"t": "warm"})", error_code::parse_error,
-        "field /t: payload 'warm' is not a number"},
+      {{"string not a number", R"({"t": "warm"})", error_code::parse_error, "field /t: payload 'warm' is not a number"},
        "/t"},
       {{"string nan", R"({"t": "nan"})", error_code::not_finite, "field /t: payload 'nan' is not a finite number"},
        "/t"},
@@ -125,7 +124,8 @@ TEST(DecodeNumber, RejectsJsonPayloadsWithoutANumberAtTheField) {
       {{"object", R"({"t": {"v": 1}})", error_code::parse_error, "field /t is not a number"}, "/t"},
       {{"array", R"({"t": [1]})", error_code::parse_error, "field /t is not a number"}, "/t"},
   };
-  for (const auto& jc : cases) expect_rejected(decode_number(jc.c.payload, json_at(jc.field), input_kind::air_temp), jc.c);
+  for (const auto& jc : cases)
+    expect_rejected(decode_number(jc.c.payload, json_at(jc.field), input_kind::air_temp), jc.c);
 }
 
 struct unit_case {
@@ -176,8 +176,8 @@ struct switch_case {
 TEST(DecodeSwitch, MatchesActiveWordsIgnoringCaseAndBlanks) {
   const input_config cfg = switch_of({"1", "true", "wet"});
   const std::vector<switch_case> cases = {
-      {"1", true},     {"true", true},  {"TRUE", true},   {"Wet", true},  {"  wet\r\n", true},
-      {"0", false},    {"false", false}, {"dry", false},  {"wetter", false}, {"1.0", true},  // the same number as "1"
+      {"1", true},  {"true", true},   {"TRUE", true}, {"Wet", true},     {"  wet\r\n", true},
+      {"0", false}, {"false", false}, {"dry", false}, {"wetter", false}, {"1.0", true},  // the same number as "1"
   };
   for (const auto& c : cases) {
     const auto v = decode_switch(c.payload, cfg);
@@ -192,8 +192,8 @@ TEST(DecodeSwitch, MatchesActiveWordsIgnoringCaseAndBlanks) {
 TEST(DecodeSwitch, ReadsJsonStringBooleanAndNumberFields) {
   const input_config cfg = switch_of({"1", "true", "wet"}, "/state");
   const std::vector<switch_case> cases = {
-      {R"({"state": true})", true},  {R"({"state": false})", false}, {R"({"state": 1})", true},
-      {R"({"state": 0})", false},    {R"({"state": 1.0})", true},    {R"({"state": "WET"})", true},
+      {R"({"state": true})", true},     {R"({"state": false})", false}, {R"({"state": 1})", true},
+      {R"({"state": 0})", false},       {R"({"state": 1.0})", true},    {R"({"state": "WET"})", true},
       {R"({"state": " dry "})", false}, {R"({"state": "1"})", true},
   };
   for (const auto& c : cases) {
@@ -236,13 +236,13 @@ struct plausible_case {
 TEST(CheckPlausible, AcceptsEachKindInsideItsRange) {
   const plausibility_config p{};
   const std::vector<plausible_case> cases = {
-      {input_kind::air_temp, -30.0, -30.0},     {input_kind::air_temp, 60.0, 60.0},
-      {input_kind::surface, -20.0, -20.0},      {input_kind::surface, 80.0, 80.0},
-      {input_kind::supply_temp, 0.0, 0.0},      {input_kind::supply_temp, 90.0, 90.0},
-      {input_kind::return_temp, 16.0, 16.0},    {input_kind::flow, 0.0, 0.0},
-      {input_kind::flow, 1000.0, 1000.0},       {input_kind::humidity, 0.5, 0.5},
-      {input_kind::humidity, 100.0, 100.0},     {input_kind::humidity, 101.5, 100.0},  // overshoot clamped
-      {input_kind::humidity, 103.0, 100.0},     {input_kind::condensation_switch, 1.0, 1.0},
+      {input_kind::air_temp, -30.0, -30.0},   {input_kind::air_temp, 60.0, 60.0},
+      {input_kind::surface, -20.0, -20.0},    {input_kind::surface, 80.0, 80.0},
+      {input_kind::supply_temp, 0.0, 0.0},    {input_kind::supply_temp, 90.0, 90.0},
+      {input_kind::return_temp, 16.0, 16.0},  {input_kind::flow, 0.0, 0.0},
+      {input_kind::flow, 1000.0, 1000.0},     {input_kind::humidity, 0.5, 0.5},
+      {input_kind::humidity, 100.0, 100.0},   {input_kind::humidity, 101.5, 100.0},  // overshoot clamped
+      {input_kind::humidity, 103.0, 100.0},   {input_kind::condensation_switch, 1.0, 1.0},
       {input_kind::window_contact, 0.0, 0.0},
   };
   for (const auto& c : cases) {

@@ -9,7 +9,7 @@
 namespace dewmargin {
 namespace {
 
-constexpr double k_window_s = 600.0;  // the default trend_window_s
+constexpr double k_window_s = 600.0;                     // the default trend_window_s
 const timestamp k_t0 = from_unix_ms(1'784'030'400'000);  // 2026-07-14T12:00:00Z
 
 timestamp at_ms(std::int64_t ms) { return k_t0 + std::chrono::milliseconds(ms); }
@@ -124,8 +124,8 @@ TEST(MarginTrend, IgnoresAReadingOlderThanTheLastOne) {
   feed_line(trend, 0.0, 605.0, 5.0, 3.0, -0.1);  // the last point, 605 s, is in the bucket 600–610 s
   const auto before = trend.minutes_to_condensation(at_s(605));
   ASSERT_TRUE(before.has_value());
-  trend.add(at_s(300), 50.0);    // far in the past of the ring
-  trend.add(at_s(602), -10.0);   // inside the last point's thinning bucket, but earlier
+  trend.add(at_s(300), 50.0);   // far in the past of the ring
+  trend.add(at_s(602), -10.0);  // inside the last point's thinning bucket, but earlier
   const auto after = trend.minutes_to_condensation(at_s(605));
   ASSERT_TRUE(after.has_value());
   EXPECT_DOUBLE_EQ(*after, *before);

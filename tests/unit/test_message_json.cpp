@@ -66,9 +66,9 @@ loop_state_view full_loop() {
 
 TEST(ZoneStateJson, HasExactlyTheKeysOfTheDesign) {
   // design.md, plus minutes_to_condensation.
-  const std::set<std::string> expected = {"site",     "zone",     "ts",           "band",          "dew_point_c",
-                                          "air_temp_c", "rh_pct", "surface_min_c", "supply_c",      "margin_k",
-                                          "margin_source", "valve", "alarm",       "minutes_to_condensation"};
+  const std::set<std::string> expected = {
+      "site",          "zone",     "ts",       "band",          "dew_point_c", "air_temp_c", "rh_pct",
+      "surface_min_c", "supply_c", "margin_k", "margin_source", "valve",       "alarm",      "minutes_to_condensation"};
   const auto j = nlohmann::json::parse(format_zone_state(full_zone()));
   EXPECT_EQ(keys_of(j), expected);
   EXPECT_EQ(keys_of(j["alarm"]), (std::set<std::string>{"active", "acknowledged", "shelved_until"}));
@@ -121,7 +121,7 @@ struct rounding_case {
 TEST(ZoneStateJson, RoundsToHundredths) {
   const std::vector<rounding_case> cases = {
       {14.456, 14.46, "14.46"}, {14.454, 14.45, "14.45"}, {-1.236, -1.24, "-1.24"},
-      {-0.004, 0.0, "0.0"},     {0.1 + 0.2, 0.3, "0.3"},   {21.0, 21.0, "21.0"},
+      {-0.004, 0.0, "0.0"},     {0.1 + 0.2, 0.3, "0.3"},  {21.0, 21.0, "21.0"},
   };
   for (const auto& c : cases) {
     zone_state_view v = full_zone();
@@ -141,8 +141,8 @@ TEST(ZoneStateJson, WritesMillisecondsOnlyWhenThereAreAny) {
 
 TEST(LoopStateJson, HasExactlyTheKeysOfTheDesign) {
   // design.md, plus return_c and flow_l_s.
-  const std::set<std::string> expected = {"site",   "loop",     "ts",       "setpoint_c", "supply_c",
-                                          "reason", "limited",  "cooling_kw", "return_c", "flow_l_s"};
+  const std::set<std::string> expected = {"site",   "loop",    "ts",         "setpoint_c", "supply_c",
+                                          "reason", "limited", "cooling_kw", "return_c",   "flow_l_s"};
   EXPECT_EQ(keys_of(nlohmann::json::parse(format_loop_state(full_loop()))), expected);
 }
 
@@ -209,8 +209,8 @@ struct bare_case {
 
 TEST(BareNumber, HasTwoDecimalsAndNoExponent) {
   const std::vector<bare_case> cases = {
-      {17.9, "17.90"},   {20.0, "20.00"},     {15.456, "15.46"}, {15.454, "15.45"}, {-0.001, "0.00"},
-      {-2.5, "-2.50"},   {1234.5, "1234.50"}, {1e-9, "0.00"},    {0.1 + 0.2, "0.30"},
+      {17.9, "17.90"}, {20.0, "20.00"},     {15.456, "15.46"}, {15.454, "15.45"},   {-0.001, "0.00"},
+      {-2.5, "-2.50"}, {1234.5, "1234.50"}, {1e-9, "0.00"},    {0.1 + 0.2, "0.30"},
   };
   for (const auto& c : cases) EXPECT_EQ(format_bare_number(c.value), c.text) << c.value;
 }

@@ -132,8 +132,8 @@ struct shelve_case {
 
 TEST(ZoneAlarm, ShelvesForOneTo1440Minutes) {
   const std::vector<shelve_case> cases = {
-      {-5, "minutes must be 1 to 1440"}, {0, "minutes must be 1 to 1440"}, {1, ""},
-      {1440, ""},                        {1441, "minutes must be 1 to 1440"},
+      {-5, "minutes must be 1 to 1440"},   {0, "minutes must be 1 to 1440"}, {1, ""}, {1440, ""},
+      {1441, "minutes must be 1 to 1440"},
   };
   for (const auto& c : cases) {
     zone_alarm a;
