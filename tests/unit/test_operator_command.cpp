@@ -43,6 +43,8 @@ TEST(OperatorCommand, RejectsEveryMalformedCommandWithItsReason) {
        "missing 'by' (who gives the command)", "l2e"},
       {"empty by", "ack", R"({"zone":"l2e","by":""})", error_code::invalid_argument,
        "missing 'by' (who gives the command)", "l2e"},
+      {"blank by", "ack", R"({"zone":"l2e","by":"  "})", error_code::invalid_argument,
+       "missing 'by' (who gives the command)", "l2e"},
       {"by a number", "ack", R"({"zone":"l2e","by":42})", error_code::parse_error, "'by' must be a string", "l2e"},
       {"note not a string", "ack", R"({"zone":"l2e","by":"jd","note":5})", error_code::parse_error,
        "'note' must be a string", "l2e"},

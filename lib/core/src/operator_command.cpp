@@ -68,7 +68,7 @@ result<operator_command> parse_operator_command(std::string_view verb_text, std:
 
   auto by = optional_text(doc, "by");
   if (!by) return by.err();
-  if (by.value().empty()) return make_error(error_code::invalid_argument, "missing 'by' (who gives the command)");
+  if (by.value().find_first_not_of(" \t\r\n") == std::string::npos) return make_error(error_code::invalid_argument, "missing 'by' (who gives the command)");
   cmd.by = by.value();
 
   auto note = optional_text(doc, "note");
