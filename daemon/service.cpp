@@ -1,6 +1,7 @@
 #include "service.h"
 
 #include <chrono>
+#include <optional>
 #include <nlohmann/json.hpp>
 #include <string>
 #include <thread>
@@ -21,6 +22,7 @@ constexpr const char* k_version = "0.1.0";
 constexpr auto k_tick = std::chrono::seconds(1);
 constexpr auto k_max_wait = std::chrono::milliseconds(200);  // signal and watchdog latency
 constexpr int k_burst = 256;
+constexpr std::size_t k_max_early_messages = 1000;
 constexpr auto k_store_retry = std::chrono::seconds(60);
 constexpr auto k_stop_store_timeout = std::chrono::milliseconds(2000);
 constexpr auto k_stop_link_timeout = std::chrono::milliseconds(2000);
@@ -84,11 +86,11 @@ class service {
     }
     link_ = std::make_unique<mqtt_link>(std::move(link.value()));
 
-    // Restored alarms and setpoints go out before any new reading is evaluated.
-    const timestamp now = wall_now();
-    core_->begin(now, restored, batch_);
-    core_->service_event(now, "stopped", "running", std::string("started, version ") + k_version, batch_);
-    dispatch();
+    restored_ = std::move(restored);
+    event_time_ = cfg.clock.source == clock_source::readings;
+    // In event-time mode the core starts at the first reading's time; until then nothing
+    // is evaluated (and the first messages wait, see handle()).
+    if (!event_time_) start_core(wall_now());
     link_->start();
     notifier_.status("connecting to " + cfg.broker.uri);
 
@@ -172,8 +174,10 @@ class service {
       }
       const auto after = std::chrono::steady_clock::now();
       if (after >= next_tick) {
-        core_->tick(wall_now(), batch_);
-        dispatch();
+        if (!event_time_) {
+          core_->tick(wall_now(), batch_);
+          dispatch();
+        }
         next_tick += k_tick;
         // After a stall (suspend, debugger) do not replay the missed ticks one by one.
         if (after - next_tick > std::chrono::seconds(5)) next_tick = after + k_tick;
@@ -194,17 +198,75 @@ class service {
     }
   }
 
+  // Restored alarms and setpoints go out before any new reading is evaluated.
+  void start_core(timestamp now) {
+    core_->begin(now, restored_, batch_);
+    restored_ = restored_state{};
+    core_->service_event(now, "stopped", "running", std::string("started, version ") + k_version, batch_);
+    dispatch();
+    started_ = true;
+    event_now_ = now;
+    next_event_tick_ = now + k_tick;
+  }
+
   // Each message's outputs go out before the next message is taken (alarm latency).
   void handle(const inbound_message& msg) {
-    core_->on_message(msg.topic, msg.payload, wall_now(), batch_, msg.retained);
+    if (!event_time_) {
+      core_->on_message(msg.topic, msg.payload, wall_now(), batch_, msg.retained);
+      if (!batch_.empty()) dispatch();
+      return;
+    }
+    const std::optional<timestamp> ts = reading_time(msg.payload);
+    if (!started_) {
+      if (!ts) {
+        // Commands before the first reading: keep a bounded number for when time starts.
+        if (early_.size() < k_max_early_messages) early_.push_back(msg);
+        return;
+      }
+      start_core(*ts);
+      std::vector<inbound_message> early;
+      early.swap(early_);
+      for (const auto& m : early) handle(m);
+    }
+    if (ts && *ts > event_now_) advance_event_time(*ts);
+    core_->on_message(msg.topic, msg.payload, ts.value_or(event_now_), batch_, msg.retained);
     if (!batch_.empty()) dispatch();
   }
+
+  // Event time: the ISO 8601 text at clock.field of a JSON payload.
+  std::optional<timestamp> reading_time(const std::string& payload) const {
+    if (payload.empty() || payload.front() != '{') return std::nullopt;
+    const auto doc = nlohmann::json::parse(payload, nullptr, false);
+    if (doc.is_discarded() || !doc.is_object()) return std::nullopt;
+    try {
+      const nlohmann::json::json_pointer ptr(core_->config().clock.field);
+      if (!doc.contains(ptr) || !doc.at(ptr).is_string()) return std::nullopt;
+      auto t = parse_iso8601(doc.at(ptr).get<std::string>());
+      if (!t) return std::nullopt;
+      return t.value();
+    } catch (const nlohmann::json::exception&) {
+      return std::nullopt;
+    }
+  }
+
+  // Ticks once per second of event time passed; a jump of more than an hour ticks once.
+  void advance_event_time(timestamp t) {
+    if (t - next_event_tick_ > std::chrono::hours(1)) next_event_tick_ = t;
+    while (next_event_tick_ <= t) {
+      core_->tick(next_event_tick_, batch_);
+      dispatch();
+      next_event_tick_ += k_tick;
+    }
+    event_now_ = t;
+  }
+
+  timestamp service_now() const { return event_time_ ? event_now_ : wall_now(); }
 
   void reload() {
     notifier_.reloading();
     log_->info("SIGHUP: reloading {}", options_.config_path.string());
     auto loaded = load_config_file(options_.config_path);
-    const timestamp now = wall_now();
+    const timestamp now = service_now();
     if (!loaded.ok()) {
       for (const auto& d : loaded.errors) log_->error("{}", d.to_string());
       const std::string first = loaded.errors.empty() ? std::string("unknown error") : loaded.errors.front().to_string();
@@ -229,6 +291,16 @@ class service {
       log_->warn("input topics changed: they take effect at the next restart (subscriptions are kept)");
     }
     if (!apply_log_level(fresh->config())) log_->warn("logging level unchanged");
+    if (fresh->config().clock.source != core_->config().clock.source) {
+      log_->warn("clock source changed: it takes effect at the next restart");
+    }
+    if (!started_) {
+      // Event time has not started yet: nothing to carry over.
+      core_ = std::move(fresh);
+      log_->info("config reloaded before the first reading");
+      notifier_.ready("config reloaded");
+      return;
+    }
     fresh->adopt(*core_, now, batch_);
     core_ = std::move(fresh);
     core_->service_event(now, "running", "running", "config reloaded", batch_);
@@ -238,10 +310,12 @@ class service {
 
   void shut_down() {
     notifier_.stopping();
-    const timestamp now = wall_now();
-    core_->flush(now, batch_);
-    core_->service_event(now, "running", "stopped", "stop requested by signal", batch_);
-    dispatch();
+    if (started_) {
+      const timestamp now = service_now();
+      core_->flush(now, batch_);
+      core_->service_event(now, "running", "stopped", "stop requested by signal", batch_);
+      dispatch();
+    }
     if (store_) {
       if (!store_->flush(k_stop_store_timeout)) log_->error("history: not every row was written before stopping");
       store_->stop(std::chrono::milliseconds(500));
@@ -263,6 +337,13 @@ class service {
   std::unique_ptr<mqtt_link> link_;
   std::chrono::steady_clock::time_point last_store_attempt_{};
   engine_output batch_;
+  restored_state restored_;
+  bool started_ = false;
+  // Event-time mode (clock.source: readings).
+  bool event_time_ = false;
+  timestamp event_now_{};
+  timestamp next_event_tick_{};
+  std::vector<inbound_message> early_;
 };
 
 }  // namespace

@@ -363,6 +363,10 @@ const text_case k_rule_cases[] = {
      39, "'keep_samples_days' must be greater than 0, got 0"},
     {"logging_level", k_head + "logging: {level: loud}\n" + k_loop + k_zone, 4, 18,
      "logging level 'loud' is not one of trace, debug, info"},
+    {"clock_source", k_head + "clock: {source: gps}\n" + k_loop + k_zone, 4, 17,
+     "clock source 'gps' is not one of wall, readings"},
+    {"clock_field", k_head + "clock: {source: readings, field: ts}\n" + k_loop + k_zone, 4, 34,
+     "'field' must be a JSON pointer starting with '/'"},
     {"plausibility_inverted", k_head + "plausibility: {water_c: {min: 30, max: 30}}\n" + k_loop + k_zone, 4, 31,
      "plausibility water_c: 'min' (30) must be below 'max' (30)"},
     {"output_reserved_by_service",
@@ -457,6 +461,16 @@ const text_case k_rule_cases[] = {
 std::string name_of_case(const ::testing::TestParamInfo<text_case>& case_info) { return case_info.param.name; }
 
 INSTANTIATE_TEST_SUITE_P(Cases, ConfigRule, ::testing::ValuesIn(k_rule_cases), name_of_case);
+
+TEST(ConfigLoader, ClockDefaultsToWallAndReadsEventTime) {
+  const auto wall = load_config_text(k_head + k_loop + k_zone, "t.yaml");
+  ASSERT_TRUE(wall.ok()) << all_errors(wall);
+  EXPECT_EQ(wall.config->clock.source, clock_source::wall);
+  const auto events = load_config_text(k_head + "clock: {source: readings, field: /time}\n" + k_loop + k_zone, "t.yaml");
+  ASSERT_TRUE(events.ok()) << all_errors(events);
+  EXPECT_EQ(events.config->clock.source, clock_source::readings);
+  EXPECT_EQ(events.config->clock.field, "/time");
+}
 
 TEST(ConfigLoader, QuotedNumbersAreReadAsNumbers) {
   const auto r = load_config_text(k_head + "defaults: {confirm_s: '45'}\n" + k_loop + k_zone, "t.yaml");

@@ -425,6 +425,8 @@ TEST(Engine, UnacknowledgedAlarmStaysLatchedAfterReturnToNormal) {
   EXPECT_EQ(z1["alarm"]["acknowledged"], false);
   d.send("dm/cmd/ack", R"({"zone":"z1","by":"jk"})");
   EXPECT_EQ(d.last_json("dm/zone/z1/state")["alarm"]["acknowledged"], true);
+  ASSERT_EQ(d.events("ack").size(), 1u);
+  EXPECT_EQ(d.events("ack")[0]["from"], "latched");
 }
 
 TEST(Engine, ShelvingSuppressesUntilExpiry) {

@@ -76,6 +76,8 @@ enum class input_kind { temperature, humidity, flow, binary };
 
 // Topic rules common to inputs and outputs; reports and returns false when broken.
 bool check_topic(const located<std::string>& topic, bool is_input, diagnostics& diag);
+// A JSON pointer (RFC 6901) that names a field: starts with '/'.
+bool check_json_pointer(const located<std::string>& field, diagnostics& diag);
 
 // Ids become topic levels (`<prefix>/zone/<id>/state`).
 bool check_id(const located<std::string>& id, const char* what, diagnostics& diag);

@@ -52,22 +52,6 @@ std::string unit_list(const std::vector<unit_choice>& choices) {
   return out;
 }
 
-// RFC 6901: "" or "/" followed by reference tokens, where '~' is only "~0" or "~1".
-// The empty pointer (whole document) is refused: that is what a bare payload is for.
-bool check_json_pointer(const located<std::string>& field, diagnostics& diag) {
-  const std::string& f = field.value;
-  if (f.empty() || f.front() != '/') {
-    diag.error(field.at, "'field' must be a JSON pointer starting with '/', got '" + f + "'");
-    return false;
-  }
-  for (std::size_t i = 0; i < f.size(); ++i) {
-    if (f[i] == '~' && (i + 1 == f.size() || (f[i + 1] != '0' && f[i + 1] != '1'))) {
-      diag.error(field.at, "'field' '" + f + "' is not a valid JSON pointer: '~' must be followed by 0 or 1");
-      return false;
-    }
-  }
-  return true;
-}
 
 bool read_active_list(const map_reader& m, input_config& in) {
   if (!m.require("active")) return false;
@@ -96,6 +80,23 @@ bool read_active_list(const map_reader& m, input_config& in) {
 }
 
 }  // namespace
+
+// RFC 6901: "" or "/" followed by reference tokens, where '~' is only "~0" or "~1".
+// The empty pointer (whole document) is refused: that is what a bare payload is for.
+bool check_json_pointer(const located<std::string>& field, diagnostics& diag) {
+  const std::string& f = field.value;
+  if (f.empty() || f.front() != '/') {
+    diag.error(field.at, "'field' must be a JSON pointer starting with '/', got '" + f + "'");
+    return false;
+  }
+  for (std::size_t i = 0; i < f.size(); ++i) {
+    if (f[i] == '~' && (i + 1 == f.size() || (f[i + 1] != '0' && f[i + 1] != '1'))) {
+      diag.error(field.at, "'field' '" + f + "' is not a valid JSON pointer: '~' must be followed by 0 or 1");
+      return false;
+    }
+  }
+  return true;
+}
 
 bool check_topic(const located<std::string>& topic, bool is_input, diagnostics& diag) {
   const std::string& t = topic.value;

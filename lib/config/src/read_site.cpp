@@ -181,6 +181,22 @@ void read_logging(const YAML::Node& node, reading& r) {
   r.config.logging.level = level->value;
 }
 
+void read_clock(const YAML::Node& node, reading& r) {
+  const map_reader m(node, "clock", {"source", "field"}, r.diag);
+  if (auto source = m.text("source")) {
+    if (source->value == "wall") {
+      r.config.clock.source = clock_source::wall;
+    } else if (source->value == "readings") {
+      r.config.clock.source = clock_source::readings;
+    } else {
+      r.diag.error(source->at, "clock source '" + source->value + "' is not one of wall, readings");
+    }
+  }
+  if (auto field = m.text("field")) {
+    if (check_json_pointer(*field, r.diag)) r.config.clock.field = field->value;
+  }
+}
+
 }  // namespace
 
 void read_site(const YAML::Node& root, reading& r) {
@@ -192,8 +208,8 @@ void read_site(const YAML::Node& root, reading& r) {
     return;
   }
   const map_reader top(root, "",
-                       {"site", "broker", "storage", "publish", "defaults", "plausibility", "logging", "loops", "zones",
-                        "dehumidifiers"},
+                       {"site", "broker", "storage", "publish", "defaults", "plausibility", "logging", "clock", "loops",
+                        "zones", "dehumidifiers"},
                        r.diag);
   non_empty_text(top, "site", presence::required, r.config.site);
   if (auto n = section(top, "broker", presence::required, " like { uri: ..., client_id: ... }")) read_broker(*n, r);
@@ -206,6 +222,7 @@ void read_site(const YAML::Node& root, reading& r) {
     read_plausibility(*n, r);
   }
   if (auto n = section(top, "logging", presence::optional, " like { level: info }")) read_logging(*n, r);
+  if (auto n = section(top, "clock", presence::optional, " like { source: readings, field: /ts }")) read_clock(*n, r);
   if (top.has("loops")) read_loops(*top.value("loops"), top.value_mark("loops"), r);
   if (top.require("zones")) read_zones(*top.value("zones"), top.value_mark("zones"), r);
   if (top.has("dehumidifiers")) read_dehumidifiers(*top.value("dehumidifiers"), top.value_mark("dehumidifiers"), r);

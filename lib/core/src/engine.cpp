@@ -583,7 +583,9 @@ struct engine::state {
     event_json e(cfg.site, now, subject_type::zone, z.cfg->id, command_verb_name(c.verb));
     switch (c.verb) {
       case command_verb::ack:
-        e.text("from", "unacknowledged").text("to", "acknowledged").text("by", c.by).text_or_null("note", c.note);
+        // ISA-18.2: an alarm that cleared while unacknowledged is latched (return to normal, unacknowledged).
+        e.text("from", before.active ? "unacknowledged" : "latched").text("to", "acknowledged").text("by", c.by);
+        e.text_or_null("note", c.note);
         break;
       case command_verb::shelve:
         e.text("from", before.shelved_until ? "shelved" : "unshelved").text("to", "shelved").text("by", c.by);

@@ -39,6 +39,10 @@ result<double> parse_bare_number(std::string_view text) {
   if (errno == ERANGE || !std::isfinite(v)) {
     return make_error(error_code::not_finite, "payload '" + excerpt(t) + "' is not a finite number");
   }
+  // strtod also reads hexadecimal ("0x15" = 21): no sensor means that, and JSON has no such numbers.
+  if (t.find_first_not_of("0123456789+-.eE") != std::string_view::npos) {
+    return make_error(error_code::parse_error, "payload '" + excerpt(t) + "' is not a number");
+  }
   return v;
 }
 
@@ -141,8 +145,14 @@ result<bool> decode_switch(std::string_view payload, const input_config& cfg) {
   }
   if (text.empty()) return make_error(error_code::parse_error, "empty payload");
   const std::string needle = lower(trim(text));
+  // Numbers match by value, so that a JSON 1.0 (or a bare "1.0") counts as an active "1".
+  const auto number = parse_bare_number(needle);
   for (const auto& a : cfg.active) {
     if (lower(trim(a)) == needle) return true;
+    if (number) {
+      const auto active_number = parse_bare_number(a);
+      if (active_number && active_number.value() == number.value()) return true;
+    }
   }
   return false;
 }

@@ -9,13 +9,22 @@ namespace dewmargin {
 namespace {
 
 constexpr std::size_t k_max_text = 200;  // by / note / reason are free text, but bounded
+constexpr std::size_t k_max_verb_echo = 40;
+
+// Cuts to at most max_bytes, never inside a UTF-8 character: a split character would
+// make every event that echoes the text unserialisable as JSON.
+std::string bounded(std::string s, std::size_t max_bytes = k_max_text) {
+  if (s.size() <= max_bytes) return s;
+  std::size_t cut = max_bytes;
+  while (cut > 0 && (static_cast<unsigned char>(s[cut]) & 0xC0U) == 0x80U) --cut;  // continuation byte
+  s.resize(cut);
+  return s;
+}
 
 result<std::string> optional_text(const nlohmann::json& doc, const char* key) {
   if (!doc.contains(key) || doc[key].is_null()) return std::string{};
   if (!doc[key].is_string()) return make_error(error_code::parse_error, std::string("'") + key + "' must be a string");
-  std::string s = doc[key].get<std::string>();
-  if (s.size() > k_max_text) s.resize(k_max_text);
-  return s;
+  return bounded(doc[key].get<std::string>());
 }
 
 }  // namespace
@@ -32,6 +41,12 @@ const char* command_verb_name(command_verb v) {
 result<operator_command> parse_operator_command(std::string_view verb_text, std::string_view payload,
                                                 std::string& zone_out) {
   operator_command cmd;
+  const nlohmann::json doc = nlohmann::json::parse(payload.begin(), payload.end(), nullptr, false);
+  // The zone is taken first so that every rejection, also of an unknown verb, can name it.
+  if (doc.is_object() && doc.contains("zone") && doc["zone"].is_string()) {
+    zone_out = bounded(doc["zone"].get<std::string>());
+  }
+
   if (verb_text == "ack") {
     cmd.verb = command_verb::ack;
   } else if (verb_text == "shelve") {
@@ -39,22 +54,21 @@ result<operator_command> parse_operator_command(std::string_view verb_text, std:
   } else if (verb_text == "unshelve") {
     cmd.verb = command_verb::unshelve;
   } else {
-    return make_error(error_code::invalid_argument,
-                      "unknown command '" + std::string(verb_text.substr(0, 40)) + "' (ack, shelve, unshelve)");
+    return make_error(
+        error_code::invalid_argument,
+        "unknown command '" + bounded(std::string(verb_text), k_max_verb_echo) + "' (ack, shelve, unshelve)");
   }
 
-  const nlohmann::json doc = nlohmann::json::parse(payload.begin(), payload.end(), nullptr, false);
   if (doc.is_discarded()) return make_error(error_code::parse_error, "payload is not valid JSON");
   if (!doc.is_object()) return make_error(error_code::parse_error, "payload must be a JSON object");
 
-  if (doc.contains("zone") && doc["zone"].is_string()) zone_out = doc["zone"].get<std::string>().substr(0, k_max_text);
   if (!doc.contains("zone") || doc["zone"].is_null()) return make_error(error_code::invalid_argument, "missing 'zone'");
   if (!doc["zone"].is_string()) return make_error(error_code::parse_error, "'zone' must be a string");
   cmd.zone = zone_out;
 
   auto by = optional_text(doc, "by");
   if (!by) return by.err();
-  if (by.value().empty()) return make_error(error_code::invalid_argument, "missing 'by' (who gives the command)");
+  if (by.value().find_first_not_of(" \t\r\n") == std::string::npos) return make_error(error_code::invalid_argument, "missing 'by' (who gives the command)");
   cmd.by = by.value();
 
   auto note = optional_text(doc, "note");

@@ -78,10 +78,12 @@ result<timestamp> parse_ts(const std::string& text, timestamp start, int line) {
     errno = 0;
     char* end = nullptr;
     const double s = std::strtod(text.c_str(), &end);
-    if (end != text.c_str() + text.size() || errno == ERANGE || !std::isfinite(s) || s < 0.0) {
-      return line_error(line, "ts '" + text + "' is neither ISO 8601 nor seconds from the start (>= 0)");
+    if (end == text.c_str() + text.size() && errno != ERANGE && std::isfinite(s) && s >= 0.0) {
+      return start + std::chrono::milliseconds(static_cast<std::int64_t>(std::llround(s * 1000.0)));
     }
-    return start + std::chrono::milliseconds(static_cast<std::int64_t>(std::llround(s * 1000.0)));
+    // A date alone ("2026-07-14") is made of the same characters and is ISO 8601 too.
+    if (auto date = parse_iso8601(text)) return date.value();
+    return line_error(line, "ts '" + text + "' is neither ISO 8601 nor seconds from the start (>= 0)");
   }
   auto t = parse_iso8601(text);
   if (!t) return line_error(line, "ts: " + t.err().message);

@@ -85,7 +85,10 @@ bool supply_reset::raise_to_max(const std::string& zone, timestamp now) {
   d.dew_point_unknown = true;
   d.governing_zone = zone;
   const reset_target t = compute_reset_target(d, cfg_);
-  if (setpoint_c_ >= t.target_c && limited_ == setpoint_limit::max) return false;
+  if (setpoint_c_ >= t.target_c && limited_ == setpoint_limit::max) {
+    reason_ = t.reason;  // an unknown dew point outranks a high one as the reason
+    return false;
+  }
   setpoint_c_ = t.target_c;
   limited_ = t.limited;
   reason_ = t.reason;
