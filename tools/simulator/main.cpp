@@ -62,6 +62,8 @@ int main(int argc, char** argv) {
   app.add_option("--wait-service-s", run.wait_service_s, "Wall seconds to wait for the broker and the service")
       ->check(CLI::PositiveNumber);
   app.add_option("--json", json_path, "Also write the result as JSON to this file ('-': standard output)");
+  std::string trace_path;
+  app.add_option("--trace", trace_path, "Write the true state as CSV, one row per zone and simulated minute");
   app.add_flag("--quiet", quiet, "No status lines and no text summary");
   app.footer(
       "\nExamples:\n"
@@ -92,6 +94,15 @@ int main(int argc, char** argv) {
     return k_exit_usage;
   }
   dewmargin::sim::simulation& sim = *created.value();
+  std::ofstream trace;
+  if (!trace_path.empty()) {
+    trace.open(trace_path, std::ios::binary | std::ios::trunc);
+    if (!trace) {
+      std::cerr << "dewmargin-sim: cannot write " << trace_path << "\n";
+      return k_exit_usage;
+    }
+    run.trace = &trace;
+  }
   const int rc = no_service ? dewmargin::sim::run_offline(sim, run, std::cout)
                             : dewmargin::sim::run_with_broker(sim, run, std::cout, std::cerr);
   if (rc != 0) return rc;

@@ -1,6 +1,7 @@
 #include "run_loop.h"
 
 #include <chrono>
+#include <cmath>
 #include <mqtt/async_client.h>
 #include <ostream>
 #include <thread>
@@ -16,6 +17,12 @@ constexpr auto k_connect_retry = std::chrono::milliseconds(250);
 constexpr auto k_trailing_drain = std::chrono::milliseconds(500);
 
 // Prints a status line each time the simulated clock passes a multiple of the interval.
+void maybe_trace(const simulation& sim, std::ostream* trace) {
+  if (!trace) return;
+  const double minute_s = std::fmod(sim.now_s(), 60.0);
+  if (minute_s < 1e-6 || minute_s > 60.0 - 1e-6) *trace << trace_rows(sim);
+}
+
 class status_printer {
  public:
   status_printer(double every_s, double start_s) : every_s_(every_s), next_s_(start_s + every_s) {}
@@ -56,9 +63,11 @@ int run_offline(simulation& sim, const run_options& o, std::ostream& out) {
   std::vector<outbound> ignored;
   status_printer status(o.status_every_s, sim.now_s());
   sim.begin(ignored);
+  if (o.trace) *o.trace << trace_header() << trace_rows(sim);
   while (!sim.done()) {
     ignored.clear();
     sim.advance(ignored);
+    maybe_trace(sim, o.trace);
     status.maybe_print(sim, out);
   }
   return 0;
@@ -92,7 +101,7 @@ int run_with_broker(simulation& sim, const run_options& o, std::ostream& out, st
         err << "dewmargin-sim: lost the connection to " << o.broker_uri << "\n";
         return 1;
       }
-      sim.on_message(msg->get_topic(), msg->get_payload_ref());
+      sim.on_message(msg->get_topic(), msg->get_payload_str());
     }
     out << "dewmargin-sim: service online; playing '" << sim.script().name << "' from "
         << format_iso8601_utc(sim.now()) << " at " << o.speed << "x" << std::endl;
@@ -104,6 +113,7 @@ int run_with_broker(simulation& sim, const run_options& o, std::ostream& out, st
     double worst_lag_s = 0.0;
     sim.begin(outgoing);
     publish_all(cli, outgoing);
+    if (o.trace) *o.trace << trace_header() << trace_rows(sim);
     while (!sim.done()) {
       // Take the service's commands until the wall clock reaches this step's turn.
       const auto due = wall_start + std::chrono::microseconds(static_cast<long long>(
@@ -115,17 +125,18 @@ int run_with_broker(simulation& sim, const run_options& o, std::ostream& out, st
           err << "dewmargin-sim: lost the connection to " << o.broker_uri << "\n";
           return 1;
         }
-        sim.on_message(msg->get_topic(), msg->get_payload_ref());
+        sim.on_message(msg->get_topic(), msg->get_payload_str());
       }
       const double lag_s = std::chrono::duration<double>(steady::now() - due).count();
       if (lag_s > worst_lag_s) worst_lag_s = lag_s;
       sim.advance(outgoing);
       publish_all(cli, outgoing);
+      maybe_trace(sim, o.trace);
       status.maybe_print(sim, out);
     }
     // The service's answers to the last readings.
     const auto drain_until = steady::now() + k_trailing_drain;
-    while (cli.try_consume_message_until(&msg, drain_until) && msg) sim.on_message(msg->get_topic(), msg->get_payload_ref());
+    while (cli.try_consume_message_until(&msg, drain_until) && msg) sim.on_message(msg->get_topic(), msg->get_payload_str());
     const double wall_s = std::chrono::duration<double>(steady::now() - wall_start).count();
     out << "dewmargin-sim: played " << (sim.now_s() - sim_start_s) / 3600.0 << " h in " << wall_s
         << " s of wall time (worst lag behind the pace " << worst_lag_s << " s)" << std::endl;

@@ -13,6 +13,7 @@ struct run_options {
   double speed = 400.0;          // simulated seconds per wall second; 0: as fast as possible
   double status_every_s = 1800;  // simulated; 0: no status lines
   double wait_service_s = 30.0;  // wall time to wait for the service's "online" status
+  std::ostream* trace = nullptr; // true state, one CSV row per zone and simulated minute
 };
 
 // Exit codes as everywhere in the project: 0 done, 1 runtime failure (broker, service).

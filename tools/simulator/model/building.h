@@ -24,11 +24,12 @@
 // | ventilation air                            | 10 L/s per design person | common European office design value (from memory) |
 // | DOAS design supply dew point, air temp.    | 11 °C, 18 °C             | invented design (typical for chilled-ceiling buildings, from memory) |
 // | design supply water                        | 16 °C ceilings, 19 °C slab | invented design (typical, from memory) |
+// | room temperature control (the BMS's own)  | 23–25 °C proportional band | common practice, no source (scales the panel's water share; the service's valve is a separate on/off valve) |
 // | lighting and equipment                     | 12 W/m² occupied, 3 W/m² empty | common practice, no source |
 // | effective heat capacity of a zone          | 8 × its air's             | common practice, no source (furniture, linings) |
 // | moisture buffering by furnishings          | none                     | modelling choice: humidity moves as fast as the air allows (harder for the service) |
 // | infiltration                               | 0.15–0.5 air changes per hour | invented, leaky coastal building |
-// | propped lobby door                         | +0.8 m³/s of outdoor air | invented (order of magnitude of a propped door in light wind, from memory) |
+// | propped lobby door                         | +1.5 m³/s of outdoor air | invented (a wide entrance door propped open in a sea breeze) |
 // | condensation removing moisture from air    | not modelled             | modelling choice: slightly overstates humidity while surfaces are wet |
 #include <string>
 #include <vector>
@@ -45,6 +46,9 @@ inline constexpr double k_water_specific_heat_j_kgk = 4186.0;
 inline constexpr double k_heat_capacity_multiplier = 8.0;
 inline constexpr double k_equipment_occupied_w_m2 = 12.0;
 inline constexpr double k_equipment_empty_w_m2 = 3.0;
+// The room controller throttles the panel's water flow: full above 25 °C, none below 23 °C.
+inline constexpr double k_room_control_from_c = 23.0;
+inline constexpr double k_room_control_band_k = 2.0;
 
 enum class surface_kind { metal_ceiling, slab_floor };
 

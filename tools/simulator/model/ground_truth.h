@@ -22,12 +22,14 @@ class ground_truth {
   explicit ground_truth(const building& b);
 
   // After a step ending at t_s: credits dt_s to every surface below its dew point, and to
-  // each incident label active at that time ("no incident" when none is).
-  void record(double t_s, double dt_s, const plant_model& plant, const scenario& s);
+  // each incident active then that concerns its zone (its own or a building-wide one), or
+  // to "no incident".
+  void record(double t_s, double dt_s, const std::vector<zone_state>& zones, const scenario& s);
 
   [[nodiscard]] const std::vector<zone_truth>& zones() const { return zones_; }
   [[nodiscard]] double total_condensing_min() const;
-  // Zone-minutes of condensation while each incident kind was active (overlaps count for each).
+  // Zone-minutes of condensation while an incident of each kind concerned the zone (overlaps
+  // count for each).
   [[nodiscard]] const std::map<std::string, double>& condensing_min_by_incident() const { return by_incident_; }
   // Lowest true margin of any zone at the last recorded step, and which zone.
   [[nodiscard]] std::size_t worst_zone_now() const { return worst_now_; }

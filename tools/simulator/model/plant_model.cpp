@@ -13,7 +13,7 @@ namespace {
 // overnight).
 constexpr double k_initial_supply_water_c = 20.0;
 constexpr double k_initial_slab_c = 23.0;
-constexpr double k_door_propped_m3_s = 0.8;
+constexpr double k_door_propped_m3_s = 1.5;
 constexpr double k_min_supply_water_c = 6.0;  // the plant cannot make colder water
 
 }  // namespace
@@ -107,9 +107,14 @@ void plant_model::step_zone(std::size_t i, double t_s, double dt_s) {
   const double dt_air_dt = (gains_w + flows_w - z.surface_cooling_w) / capacity_j_k;
 
   // The surface follows its water while the valve is open and drifts to the room when closed.
-  const double surface_target_c = z.valve_open ? sp.water_share * loop.supply_c + (1.0 - sp.water_share) * z.air_c
-                                               : z.air_c;
-  z.surface_c = follow(z.surface_c, surface_target_c, z.valve_open ? sp.tau_open_s : sp.tau_closed_s, dt_s);
+  // The room controller throttles the flow when the room is cool (part load); no flow at all
+  // while the service's valve is closed.
+  const double demand =
+      z.valve_open ? std::clamp((z.air_c - k_room_control_from_c) / k_room_control_band_k, 0.0, 1.0) : 0.0;
+  const double water_share = sp.water_share * demand;
+  const double surface_target_c = water_share * loop.supply_c + (1.0 - water_share) * z.air_c;
+  const double tau_s = sp.tau_closed_s + (sp.tau_open_s - sp.tau_closed_s) * demand;
+  z.surface_c = follow(z.surface_c, surface_target_c, tau_s, dt_s);
   z.humidity_ratio += dw_dt * dt_s;
   z.air_c += dt_air_dt * dt_s;
   z.dew_point_c = dew_point_from_humidity_ratio(z.humidity_ratio);

@@ -1,8 +1,11 @@
 #include "model/report.h"
 
+#include <cmath>
 #include <cstdio>
 #include <nlohmann/json.hpp>
 #include <sstream>
+
+#include "model/moist_air.h"
 
 namespace dewmargin::sim {
 namespace {
@@ -27,8 +30,8 @@ std::string incidents_now(const simulation& sim) {
   return text;
 }
 
-double rounded(double v, double step) {
-  const double r = static_cast<double>(static_cast<long long>(v / step + (v >= 0 ? 0.5 : -0.5))) * step;
+double hundredths(double v) {
+  const double r = std::round(v * 100.0) / 100.0;
   return r == 0.0 ? 0.0 : r;
 }
 
@@ -108,6 +111,31 @@ std::string summary_text(const simulation& sim) {
   return os.str();
 }
 
+std::string trace_header() {
+  return "time,zone,air_c,rh_pct,dew_point_c,surface_c,margin_k,valve,people,supply_c,setpoint_c,"
+         "outdoor_c,outdoor_dew_point_c,doas_dew_point_c,doas_request_c\n";
+}
+
+std::string trace_rows(const simulation& sim) {
+  std::ostringstream os;
+  const auto& plant = sim.plant();
+  const auto out = plant.outdoor();
+  const auto& doas = plant.doas();
+  const std::string t = format_iso8601_utc(sim.now());
+  for (std::size_t i = 0; i < plant.zones().size(); ++i) {
+    const zone_state& z = plant.zones()[i];
+    const loop_state& l = plant.loops()[plant.loop_of(i)];
+    char line[320];
+    std::snprintf(line, sizeof line, "%s,%s,%.3f,%.2f,%.3f,%.3f,%.3f,%s,%.1f,%.3f,%.2f,%.2f,%.2f,%.3f,%.2f\n",
+                  t.c_str(), plant.layout().zones[i].id.c_str(), z.air_c,
+                  relative_humidity_pct(z.air_c, z.dew_point_c), z.dew_point_c, z.surface_c,
+                  z.surface_c - z.dew_point_c, z.valve_open ? "open" : "closed", z.people, l.supply_c, l.setpoint_c,
+                  out.air_c, out.dew_point_c, doas.supply_dew_point_c, doas.request_c);
+    os << line;
+  }
+  return os.str();
+}
+
 std::string summary_json(const simulation& sim) {
   nlohmann::json j;
   const auto& sc = sim.script();
@@ -118,16 +146,16 @@ std::string summary_json(const simulation& sim) {
   j["building"] = sim.plant().layout().name;
   j["mode"] = sim.options().with_service ? "service" : "baseline";
   j["seed"] = sim.options().seed;
-  j["condensation_zone_min"] = rounded(sim.truth().total_condensing_min(), 0.01);
+  j["condensation_zone_min"] = hundredths(sim.truth().total_condensing_min());
   nlohmann::json zones = nlohmann::json::object();
   for (const auto& z : sim.truth().zones()) {
-    zones[z.zone] = {{"condensation_min", rounded(z.condensing_s / 60.0, 0.01)},
-                     {"lowest_margin_k", rounded(z.min_margin_k, 0.01)},
+    zones[z.zone] = {{"condensation_min", hundredths(z.condensing_s / 60.0)},
+                     {"lowest_margin_k", hundredths(z.min_margin_k)},
                      {"lowest_margin_at", clock_text(z.min_margin_at_s)}};
   }
   j["zones"] = zones;
   nlohmann::json by = nlohmann::json::object();
-  for (const auto& kv : sim.truth().condensing_min_by_incident()) by[kv.first] = rounded(kv.second, 0.01);
+  for (const auto& kv : sim.truth().condensing_min_by_incident()) by[kv.first] = hundredths(kv.second);
   j["condensation_zone_min_while"] = by;
   if (sim.options().with_service) {
     const auto& t = sim.watch().tally();

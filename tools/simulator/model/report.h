@@ -14,6 +14,10 @@ std::string status_line(const simulation& sim);
 // Several lines: ground truth per zone and by incident; with the service also what it did.
 std::string summary_text(const simulation& sim);
 
+// The true state, one CSV row per zone (for plots and for checking the physics).
+std::string trace_header();
+std::string trace_rows(const simulation& sim);
+
 // The result as one JSON object (see docs/demo.md for the fields).
 std::string summary_json(const simulation& sim);
 

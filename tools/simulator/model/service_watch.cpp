@@ -21,7 +21,11 @@ std::string text_at(const nlohmann::json& j, const char* key) {
 
 service_watch::service_watch(const site_config& cfg, double ack_after_s, std::string operator_name)
     : prefix_(cfg.publish.prefix), ack_after_s_(ack_after_s), operator_name_(std::move(operator_name)) {
-  for (const auto& z : cfg.zones) zones_.push_back({z.id});
+  for (const auto& z : cfg.zones) {
+    watched_zone w;
+    w.id = z.id;
+    zones_.push_back(std::move(w));
+  }
 }
 
 std::vector<std::string> service_watch::topics() const {

@@ -46,7 +46,7 @@ void simulation::advance(std::vector<outbound>& out) {
   const double dt = std::min(options_.step_s, scenario_.end_s - t_s_);
   plant_.step(t_s_, dt);
   t_s_ += dt;
-  truth_.record(t_s_, dt, plant_, scenario_);
+  truth_.record(t_s_, dt, plant_.zones(), scenario_);
   sensors_.sample(t_s_, now(), plant_, scenario_, out);
   if (options_.with_service) watch_.operator_actions(t_s_, out);
 }
