@@ -23,4 +23,16 @@ int run_dewpoint(const dewpoint_options& options, std::ostream& out, std::ostrea
 // Validates a config file and prints a summary of zones, loops and inputs.
 int run_check(const std::string& file, std::ostream& out, std::ostream& err);
 
+// `dewmargin history`: the event log of a history database. Options are kept as text (empty:
+// not given) so that each bad value is reported exactly; run_history validates them.
+struct history_options {
+  std::string db;
+  std::string zone;
+  std::string since_text;
+  std::string until_text;
+  std::string kind;
+  std::string format = "table";  // table | csv | json
+};
+int run_history(const history_options& options, std::ostream& out, std::ostream& err);
+
 }  // namespace dewmargin::cli
