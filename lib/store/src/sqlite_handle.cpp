@@ -74,7 +74,9 @@ std::string result_code_name(int rc) {
 std::string describe(sqlite3* db, int rc) {
   // sqlite3_errmsg names the last failure of this connection, which is more specific than
   // sqlite3_errstr (e.g. the trigger's message); fall back to the generic text otherwise.
-  std::string text = db != nullptr && sqlite3_errcode(db) == rc ? sqlite3_errmsg(db) : sqlite3_errstr(rc);
+  std::string text = db != nullptr && (sqlite3_extended_errcode(db) == rc || sqlite3_errcode(db) == rc)
+                         ? sqlite3_errmsg(db)
+                         : sqlite3_errstr(rc);
   text += " (" + result_code_name(rc);
   if (rc > 0xff) text += ", extended code " + std::to_string(rc);
   text += ")";

@@ -129,6 +129,7 @@ class store_writer::impl {
     {
       std::lock_guard<std::mutex> lock(mu_);
       counters_.rows_enqueued += rows;
+      ++enqueued_seq_;  // also when dropped below: a later flush() must not report them written
       if (stopping_ || thread_done_) {
         counters_.dropped_rows += rows;
         report_late = !reported_late_;
@@ -137,7 +138,6 @@ class store_writer::impl {
         const bool was_empty = pending_.empty();
         const bool was_below_early = pending_.size() < options_.commit_early_rows;
         pending_.add(output);
-        ++enqueued_seq_;
         counters_.dropped_rows += pending_.enforce_limit(options_.max_pending_rows);
         if (was_empty) oldest_pending_since_ = steady::now();
         // Wake the writer only when its schedule changes: the first row (a commit is now due in
@@ -187,6 +187,7 @@ class store_writer::impl {
     std::lock_guard<std::mutex> lock(mu_);
     store_writer_counters c = counters_;
     c.pending_rows = pending_.size() + in_flight_rows_;
+    c.in_flight_rows = in_flight_rows_;
     return c;
   }
 
@@ -215,8 +216,9 @@ class store_writer::impl {
       // When a commit is due: after a failure not before the back-off; otherwise once the
       // oldest row has waited commit_interval, or at once with many rows or while stopping.
       steady::time_point commit_due = retry_at_;
-      if (have_rows && !stopping_ && pending_.size() < options_.commit_early_rows && oldest_pending_since_) {
-        commit_due = std::max(commit_due, *oldest_pending_since_ + options_.commit_interval);
+      if (!retrying_ && have_rows && !stopping_ && pending_.size() < options_.commit_early_rows &&
+          oldest_pending_since_) {
+        commit_due = *oldest_pending_since_ + options_.commit_interval;
       }
       if (have_rows && (attempt_now_ || now >= commit_due)) {
         attempt_now_ = false;
@@ -278,6 +280,7 @@ class store_writer::impl {
       counters_.max_commit_us = std::max(counters_.max_commit_us, took_us);
       counters_.total_commit_us += took_us;
       backoff_ = options_.retry_backoff_initial;
+      retrying_ = false;
       retry_at_ = steady::time_point{};
       progress_.notify_all();
       return;
@@ -292,6 +295,7 @@ class store_writer::impl {
     const std::size_t dropped = pending_.enforce_limit(options_.max_pending_rows);
     counters_.dropped_rows += dropped;
     oldest_pending_since_ = steady::now();
+    retrying_ = true;
     const auto wait = backoff_;
     retry_at_ = steady::now() + wait;
     backoff_ = std::min(backoff_ * 2, options_.retry_backoff_max);
@@ -510,6 +514,7 @@ class store_writer::impl {
   std::uint64_t enqueued_seq_ = 0;   // enqueue() calls so far
   std::uint64_t committed_seq_ = 0;  // calls whose rows are committed (or were dropped)
   std::optional<steady::time_point> oldest_pending_since_;
+  bool retrying_ = false;  // the last commit failed: the next one waits for retry_at_ only
   steady::time_point retry_at_{};
   std::chrono::milliseconds backoff_{};
   steady::time_point next_maintenance_{};

@@ -62,6 +62,7 @@ struct store_writer_counters {
   std::uint64_t errors = 0;           // failed commits and failed maintenance steps
   std::uint64_t dropped_rows = 0;     // discarded: pending list full, or still pending at stop()
   std::uint64_t pending_rows = 0;     // waiting in memory, including a batch being written
+  std::uint64_t in_flight_rows = 0;   // of those, the batch a commit is writing right now
   std::uint64_t events_deleted = 0;   // by retention
   std::uint64_t samples_deleted = 0;  // by retention
   std::uint64_t maintenance_passes = 0;
@@ -87,7 +88,8 @@ class store_writer {
   // in one transaction (unless the pending list overflows and some are dropped).
   void enqueue(const engine_output& output);
 
-  // Waits until every row enqueued before the call is committed; false on timeout.
+  // Waits until every row enqueued before the call is committed (or was dropped by the overflow
+  // policy, which the counters show); false on timeout or when the writer has stopped.
   [[nodiscard]] bool flush(std::chrono::milliseconds timeout);
 
   // Runs one maintenance pass now and waits for it; false on timeout.
