@@ -127,6 +127,22 @@ sqlite3 "$work/newer.db" "PRAGMA user_version = 99;"
 expect_exit 1 "$bin" history --db "$work/newer.db"
 grep -q "schema version 99 is newer" "$work/err" || fail "newer: $(cat "$work/err")"
 
+# A stored event that is not valid JSON: every row is still printed, then exit 1 naming it.
+cp "$db" "$work/bad-row.db"
+sqlite3 "$work/bad-row.db" "INSERT INTO events (id, ts_ms, subject_type, subject_id, kind, json) VALUES
+  (99, 1784034300000, 'zone', 'level2-east', 'band', '{\"ts\":\"2026-07-14T13:05:00Z\",');"
+expect_exit 1 "$bin" history --db "$work/bad-row.db" --format json
+grep -q "bad-row.db: 1 stored event(s) are not valid JSON objects (first id 99)" "$work/err" ||
+  fail "invalid row: $(cat "$work/err")"
+python3 - "$work/out" <<'PY' || fail "json output with an invalid row: $(cat "$work/out")"
+import json, sys
+rows = json.load(open(sys.argv[1]))
+assert len(rows) == 8, rows
+bad = [r for r in rows if "invalid_stored_json" in r]
+assert bad == [{"ts": "2026-07-14T13:05:00Z", "zone": "level2-east", "kind": "band",
+                "invalid_stored_json": '{"ts":"2026-07-14T13:05:00Z",'}], bad
+PY
+
 # Exit 2: bad usage, checked before the database is opened.
 expect_exit 2 "$bin" history --db "$db" --since yesterday
 grep -q -- "--since: 'yesterday' is not an ISO 8601 time" "$work/err" || fail "bad since: $(cat "$work/err")"

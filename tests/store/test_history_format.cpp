@@ -112,6 +112,7 @@ TEST(EventColumns, MarksStoredTextThatIsNotAJsonObject) {
     const auto c = event_columns_of(stored(subject_type::zone, "z1", "band", bad));
     EXPECT_FALSE(c.json_valid) << bad;
     EXPECT_EQ(c.details_json, bad);
+    EXPECT_EQ(c.details_text.front(), '"') << "shown quoted on a terminal";
     EXPECT_EQ(c.kind, "band") << "the indexed columns are still shown";
   }
 }

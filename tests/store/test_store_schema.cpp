@@ -28,6 +28,13 @@ void create_with_writer(const std::filesystem::path& file) {
   EXPECT_TRUE(errors.lines().empty());
 }
 
+std::string read_file(const std::filesystem::path& file) {
+  std::ifstream in(file, std::ios::binary);
+  std::ostringstream text;
+  text << in.rdbuf();
+  return text.str();
+}
+
 std::string collapse_spaces(const std::string& text) {
   std::istringstream in(text);
   std::string word, out;
@@ -210,8 +217,7 @@ TEST(StoreSchema, RefusesAFileThatIsNotSqlite) {
   auto r = history_reader::open(file);
   ASSERT_FALSE(r.ok());
   EXPECT_EQ(r.err().kind, store_error_kind::not_a_database);
-  std::ifstream in(file);
-  EXPECT_EQ(std::string(std::istreambuf_iterator<char>(in), {}), content) << "the file is not modified";
+  EXPECT_EQ(read_file(file), content) << "the file is not modified";
 }
 
 TEST(StoreSchema, ReaderRefusesMissingAndEmptyFiles) {
@@ -261,9 +267,8 @@ TEST(StoreSchema, FixtureOfTheCliTestMatchesTheMigrations) {
   const auto ours = dir.file("ours.db");
   create_with_writer(ours);
   const auto fixture = dir.file("fixture.db");
-  std::ifstream in(std::string(DEWMARGIN_TEST_DATA_DIR) + "/history/fixture.sql");
-  ASSERT_TRUE(in) << "tests/data/history/fixture.sql";
-  const std::string sql((std::istreambuf_iterator<char>(in)), {});
+  const std::string sql = read_file(std::string(DEWMARGIN_TEST_DATA_DIR) + "/history/fixture.sql");
+  ASSERT_FALSE(sql.empty()) << "tests/data/history/fixture.sql";
   {
     raw_db db(fixture);
     ASSERT_EQ(db.exec(sql), SQLITE_OK);

@@ -55,7 +55,7 @@ std::string json_text(const stored_event& e, const event_columns& c) {
   j[c.subject_type] = c.subject;
   j["kind"] = c.kind;
   j["invalid_stored_json"] = e.record.json;
-  return j.dump();
+  return j.dump(-1, ' ', false, nlohmann::ordered_json::error_handler_t::replace);  // raw text may not be UTF-8
 }
 
 }  // namespace

@@ -43,7 +43,8 @@ event_columns event_columns_of(const stored_event& event) {
   if (!j.is_object()) {
     c.json_valid = false;
     c.details_json = r.json;
-    c.details_text = r.json;
+    // Quoted and escaped, so that stray line breaks or bytes cannot break the terminal's row.
+    c.details_text = ordered_json(r.json).dump(-1, ' ', false, ordered_json::error_handler_t::replace);
     return c;
   }
   ordered_json details = ordered_json::object();

@@ -145,7 +145,10 @@ store_result<connection> open_history_db(const std::filesystem::path& file, open
   }
 
   sqlite3* raw = nullptr;
-  const int flags = read_only ? SQLITE_OPEN_READONLY : SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE;
+  // NOMUTEX: each connection is used by one thread at a time (the writer's thread, or the
+  // reader's caller), so SQLite's per-call locking is pure cost.
+  const int flags =
+      (read_only ? SQLITE_OPEN_READONLY : SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE) | SQLITE_OPEN_NOMUTEX;
   int rc = sqlite3_open_v2(file.string().c_str(), &raw, flags, nullptr);
   connection db(raw);  // SQLite hands out a handle even on failure; it must be closed
   if (rc != SQLITE_OK) {

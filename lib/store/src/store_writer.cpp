@@ -121,6 +121,15 @@ class store_writer::impl {
     thread_ = std::thread([this] { run(); });
   }
 
+  // The owner's reporter must not take the writer down: an exception from it has nowhere
+  // else to go, so it is swallowed here (the counters still show every error).
+  void report(const std::string& line) const noexcept {
+    try {
+      options_.report_error(line);
+    } catch (...) {  // NOLINT(bugprone-empty-catch): see above
+    }
+  }
+
   void enqueue(const engine_output& output) {
     const std::size_t rows =
         output.events.size() + output.samples.size() + output.zone_snapshots.size() + output.loop_snapshots.size();
@@ -146,7 +155,7 @@ class store_writer::impl {
       }
     }
     if (report_late) {
-      options_.report_error(options_.path.string() + ": rows enqueued after the writer stopped are dropped");
+      report(options_.path.string() + ": rows enqueued after the writer stopped are dropped");
     }
   }
 
@@ -199,7 +208,7 @@ class store_writer::impl {
       run_loop();
     } catch (const std::exception& e) {
       // Nothing may escape the thread; a failure here (e.g. out of memory) ends the writer.
-      options_.report_error(options_.path.string() + ": store writer stopped by an exception: " + e.what());
+      report(options_.path.string() + ": store writer stopped by an exception: " + e.what());
     }
     std::lock_guard<std::mutex> lock(mu_);
     thread_done_ = true;
@@ -249,8 +258,7 @@ class store_writer::impl {
       counters_.dropped_rows += left;
       pending_ = pending_rows{};
       lock.unlock();
-      options_.report_error(options_.path.string() + ": stopped with " + std::to_string(left) +
-                            " rows not written (they are lost)");
+      report(options_.path.string() + ": stopped with " + std::to_string(left) + " rows not written (they are lost)");
       lock.lock();
     }
   }
@@ -269,12 +277,14 @@ class store_writer::impl {
     const std::optional<write_failure> failure = write(batch);
     const auto took_us = static_cast<std::uint64_t>(
         std::chrono::duration_cast<std::chrono::microseconds>(steady::now() - started).count());
+    const std::size_t rows = batch.size();
+    if (!failure) batch = pending_rows{};  // free the rows before taking the lock: enqueue() must not wait for it
 
     lock.lock();
     in_flight_rows_ = 0;
     if (!failure) {
       committed_seq_ = batch_seq;
-      counters_.rows_written += batch.size();
+      counters_.rows_written += rows;
       ++counters_.commits;
       counters_.last_commit_us = took_us;
       counters_.max_commit_us = std::max(counters_.max_commit_us, took_us);
@@ -286,7 +296,6 @@ class store_writer::impl {
       return;
     }
     ++counters_.errors;
-    const std::size_t rows = batch.size();
     const std::string sizes = std::to_string(rows) + " rows (" + std::to_string(batch.event_count()) + " events, " +
                               std::to_string(batch.samples().size()) + " samples, " +
                               std::to_string(batch.zone_snapshots().size() + batch.loop_snapshots().size()) +
@@ -304,7 +313,7 @@ class store_writer::impl {
                           failure->sqlite_text + "; rolled back, rows kept, retry in " + seconds_text(wait);
     if (dropped > 0) message += "; pending list full, " + std::to_string(dropped) + " oldest rows dropped";
     lock.unlock();
-    options_.report_error(message);
+    report(message);
     lock.lock();
   }
 
@@ -426,7 +435,7 @@ class store_writer::impl {
     progress_.notify_all();
     if (problems.empty()) return;
     lock.unlock();
-    for (const auto& p : problems) options_.report_error(options_.path.string() + ": maintenance: " + p);
+    for (const auto& p : problems) report(options_.path.string() + ": maintenance: " + p);
     lock.lock();
   }
 
