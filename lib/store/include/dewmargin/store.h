@@ -22,15 +22,21 @@
 //   row has waited commit_interval (1 s), as soon as commit_early_rows wait, on flush() and at
 //   stop(). A batch commits or rolls back whole; an enqueue() call's rows never straddle
 //   two transactions (unless some were dropped in an overflow).
+//   The writer takes the lock only to swap the pending list out and to update counters; the
+//   committed rows are freed before it takes the lock again. Connections are opened NOMUTEX:
+//   each is used by one thread at a time.
 // - Failures: a failed commit is rolled back, reported through the owner's callback with the
 //   file, the step, SQLite's message and code, and its rows go back to the front of the
-//   pending list to be retried after a doubling back-off (250 ms … 30 s). flush() and stop()
-//   retry at once. No SQLite call happens on the caller's thread.
+//   pending list to be retried after a doubling back-off (250 ms … 30 s). flush() asks for
+//   an attempt at once; stop() keeps retrying until its timeout, then reports and counts what
+//   is left as dropped. No SQLite call happens on the caller's thread. The callback is
+//   required (open() refuses without it); an exception thrown by it is contained.
 // - Overflow: the pending list is bounded (200,000 rows). Beyond it the oldest samples are
 //   dropped first, then the oldest events that are not alarm-related (kinds other than band,
 //   ack, shelve, unshelve), then as a last resort the oldest alarm-related ones. Zone and loop
 //   snapshots are coalesced per id (only the latest matters) and never dropped. Every dropped
-//   row is counted.
+//   row is counted. The bound applies to the rows waiting; a batch being written comes on top
+//   of it until its commit fails and it rejoins the list.
 // - Snapshots are upserted into zone_state / loop_state; a later sample for the same
 //   (zone, minute) replaces the earlier one (a restart within a minute).
 // - Retention: events older than keep_events_days and samples older than keep_samples_days
@@ -40,7 +46,10 @@
 //   sixth pass TRUNCATE, which gives up quickly when readers are active). There is never a
 //   scheduled full VACUUM. The "now" of the cut-offs is injectable for simulated time.
 // - Reading: history_reader opens with SQLITE_OPEN_READONLY, so `dewmargin history` and the
-//   report work while the service writes. Events come ordered by ts, then id.
+//   report work while the service writes. Events come ordered by ts, then id (insertion
+//   order). Filters: subject id (a zone, loop or dehumidifier), since (inclusive), until
+//   (exclusive), kind. The service's restore (load_restored_state) reads the same way.
+// - Retention cut-offs: keep_*_days <= 0 keeps rows forever.
 // - sqlite3.h stays out of these headers (pimpl); callers need only the core's types.
 #include "dewmargin/history_format.h"
 #include "dewmargin/history_reader.h"
