@@ -2,6 +2,7 @@
 
 #include <gtest/gtest.h>
 
+#include <ostream>
 #include <string>
 #include <vector>
 
@@ -41,6 +42,9 @@ struct outbox_case {
   dropped_counts dropped;
   std::uint64_t superseded;
 };
+
+// Failure messages name the case instead of dumping its bytes.
+void PrintTo(const outbox_case& c, std::ostream* os) { *os << c.name; }
 
 outbound_message parse_message(const std::string& text) {
   outbound_message m;

@@ -6,19 +6,18 @@
 namespace dewmargin {
 namespace {
 
-// Drop order when full: lower rank goes first (see outbox.h).
-constexpr int drop_rank(message_class cls) {
-  switch (cls) {
-    case message_class::event: return 0;
-    case message_class::state: return 1;
-    case message_class::command: return 2;
-    case message_class::alarm_event: return 3;
-  }
-  return 3;
-}
-
+// Drop order when full, least important first (see outbox.h).
 constexpr std::array<message_class, k_message_class_count> k_drop_order{
     message_class::event, message_class::state, message_class::command, message_class::alarm_event};
+
+constexpr std::size_t drop_rank(message_class cls) {
+  for (std::size_t rank = 0; rank < k_drop_order.size(); ++rank) {
+    if (k_drop_order[rank] == cls) {
+      return rank;
+    }
+  }
+  return k_drop_order.size();
+}
 
 }  // namespace
 
