@@ -114,6 +114,16 @@ bool outbox::on_send_failed(outbox_id id) {
   return return_to_pending(it);
 }
 
+bool outbox::on_rejected(outbox_id id) {
+  const auto it = entries_.find(id);
+  if (it == entries_.end()) {
+    return false;
+  }
+  erase(it);
+  ++rejected_;
+  return true;
+}
+
 std::size_t outbox::on_connection_lost() {
   std::size_t returned = 0;
   for (auto it = entries_.begin(); it != entries_.end();) {

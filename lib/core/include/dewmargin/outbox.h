@@ -74,6 +74,10 @@ class outbox {
   // (or discarded when superseded). Returns false unless the entry was in flight.
   bool on_send_failed(outbox_id id);
 
+  // The client library refuses the message for good (an invalid topic): it is removed
+  // and counted in rejected(). Returns false for an unknown id.
+  bool on_rejected(outbox_id id);
+
   // Every entry in flight goes back to pending at its original place, to be sent again.
   // Returns how many went back.
   std::size_t on_connection_lost();
@@ -90,6 +94,7 @@ class outbox {
   // Keyed entries replaced by a newer message for the same topic (not a loss).
   [[nodiscard]] std::uint64_t superseded() const { return superseded_; }
   [[nodiscard]] std::uint64_t delivered() const { return delivered_; }
+  [[nodiscard]] std::uint64_t rejected() const { return rejected_; }
 
   // Copies of the pending entries in sending order (for tests and diagnostics).
   [[nodiscard]] std::vector<outbox_entry> pending_entries() const;
@@ -119,6 +124,7 @@ class outbox {
   std::array<std::uint64_t, k_message_class_count> dropped_{};
   std::uint64_t superseded_ = 0;
   std::uint64_t delivered_ = 0;
+  std::uint64_t rejected_ = 0;
 };
 
 }  // namespace dewmargin
