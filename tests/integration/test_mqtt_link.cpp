@@ -400,6 +400,22 @@ TEST_F(MqttLink, ShutdownWhileBrokerDownIsBounded) {
   EXPECT_TRUE(log_->any_contains("shut down, 2 message(s) undelivered")) << "the event and the final status";
 }
 
+// The broker accepts TCP (the kernel does) but never answers CONNECT: shutdown must not
+// wait for the connect timeout.
+TEST_F(MqttLink, ShutdownDuringHangingConnectIsBounded) {
+  mosquitto_broker broker;
+  broker.start();
+  broker.freeze();
+  mqtt_link link = make_link(broker, "link-hanging-connect");
+  link.start();
+  std::this_thread::sleep_for(300ms);  // let the connect get under way
+  EXPECT_FALSE(link.connected());
+  const auto t0 = std::chrono::steady_clock::now();
+  link.shutdown(k_stopped, 500ms);
+  EXPECT_LT(std::chrono::steady_clock::now() - t0, 2s);
+  broker.thaw();
+}
+
 TEST_F(MqttLink, KeepsOutboxBoundedWhileDown) {
   mosquitto_broker broker;  // never started
   mqtt_link link = make_link(broker, "link-bounded", [](mqtt_link_options& o) { o.outbox_capacity = 20; });

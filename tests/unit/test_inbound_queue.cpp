@@ -71,6 +71,15 @@ INSTANTIATE_TEST_SUITE_P(Cases, InboundQueueOverflow, ::testing::Values(
     [](const ::testing::TestParamInfo<overflow_case>& case_info) { return std::string(case_info.param.name); });
 // clang-format on
 
+TEST(InboundQueue, PushTellsWhenItCostAMessage) {
+  inbound_queue q(1, {"svc/cmd/"});
+  EXPECT_FALSE(q.push(inbound_message{"s/t", "1", false}));
+  EXPECT_TRUE(q.push(inbound_message{"s/t", "2", false})) << "pushed out the older reading";
+  EXPECT_TRUE(q.push(inbound_message{"svc/cmd/ack", "a", false})) << "pushed out the reading";
+  EXPECT_FALSE(q.push(inbound_message{"svc/cmd/ack", "b", false})) << "over capacity, nothing lost";
+  EXPECT_TRUE(q.push(inbound_message{"s/t", "3", false})) << "the newcomer itself";
+}
+
 TEST(InboundQueue, PopTimesOutWhenEmpty) {
   inbound_queue q(4, {});
   inbound_message m;

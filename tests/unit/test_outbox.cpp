@@ -226,6 +226,22 @@ TEST(Outbox, CallbacksReportWhetherTheyChangedAnything) {
   EXPECT_TRUE(box.empty());
 }
 
+TEST(Outbox, RejectedEntryIsRemovedAndCountedApart) {
+  outbox box(10);
+  const auto a = box.push(parse_message("s:z/a=1"));
+  (void)box.take_next_to_send(1);
+  EXPECT_TRUE(box.on_rejected(*a));
+  EXPECT_FALSE(box.on_rejected(*a));
+  EXPECT_EQ(box.rejected(), 1U);
+  EXPECT_EQ(box.delivered(), 0U);
+  EXPECT_EQ(box.dropped_total(), 0U);
+  EXPECT_TRUE(box.empty());
+  // The key is free again: a new state for the topic is queued, not a replacement.
+  (void)box.push(parse_message("s:z/a=2"));
+  EXPECT_EQ(box.superseded(), 0U);
+  EXPECT_EQ(box.pending(), 1U);
+}
+
 TEST(Outbox, CountsDropsPerClassUnderSustainedOverflow) {
   outbox box(100);
   for (int i = 0; i < 100; ++i) {

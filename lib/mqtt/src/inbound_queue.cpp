@@ -12,8 +12,9 @@ bool inbound_queue::must_keep(const std::string& topic) const {
                      [&](const std::string& prefix) { return topic.compare(0, prefix.size(), prefix) == 0; });
 }
 
-void inbound_queue::push(inbound_message message) {
+bool inbound_queue::push(inbound_message message) {
   const bool keep = must_keep(message.topic);
+  bool lost = false;
   {
     std::lock_guard<std::mutex> lock(mutex_);
     ++counters_.received;
@@ -21,16 +22,18 @@ void inbound_queue::push(inbound_message message) {
       if (!droppable_.empty()) {
         droppable_.pop_front();
         ++counters_.dropped;
+        lost = true;
       } else if (keep) {
         ++counters_.kept_over_capacity;
       } else {
         ++counters_.dropped;  // only must-keep messages queued: the newcomer goes
-        return;
+        return true;
       }
     }
     (keep ? kept_ : droppable_).push_back(numbered{next_seq_++, std::move(message)});
   }
   not_empty_.notify_one();
+  return lost;
 }
 
 bool inbound_queue::pop(inbound_message& out, std::chrono::milliseconds timeout) {

@@ -374,9 +374,7 @@ struct mqtt_link::impl {
           return true;  // the connected handler subscribes and sets the session up
         }
         if (stopping()) {
-          // Let the attempt finish (bounded) so the client is not destroyed mid-connect.
-          (void)tok->wait_for(options_.connect_timeout);
-          return false;
+          return false;  // shutdown destroys the client with the attempt pending (tested)
         }
         failure = "no answer within " + std::to_string(options_.connect_timeout.count()) + " s";
       } catch (const ::mqtt::exception& e) {
@@ -482,9 +480,7 @@ struct mqtt_link::impl {
     if (!scope || !m) {
       return;
     }
-    const std::uint64_t dropped_before = inbound_.counters().dropped;
-    inbound_.push(inbound_message{m->get_topic(), m->to_string(), m->is_retained()});
-    if (inbound_.counters().dropped == dropped_before) {
+    if (!inbound_.push(inbound_message{m->get_topic(), m->to_string(), m->is_retained()})) {
       return;
     }
     bool first = false;

@@ -39,7 +39,8 @@ class inbound_queue {
   // capacity_messages is at least 1 (a smaller value is taken as 1).
   inbound_queue(std::size_t capacity_messages, std::vector<std::string> must_keep_prefixes);
 
-  void push(inbound_message message);
+  // Queues the message; true when the push cost a message (dropped, this or an older one).
+  bool push(inbound_message message);
 
   // Waits up to timeout for a message; false when none came. Messages come out in
   // arrival order.
