@@ -15,6 +15,7 @@
 #include <utility>
 
 #include "dewmargin/secret_file.h"
+#include "tcp_probe.h"
 
 namespace dewmargin {
 namespace {
@@ -31,6 +32,8 @@ constexpr std::chrono::milliseconds k_send_retry_pause{200};
 constexpr std::chrono::milliseconds k_handler_drain{2000};
 constexpr std::chrono::milliseconds k_min_disconnect_timeout{200};
 constexpr std::chrono::milliseconds k_destructor_shutdown_timeout{1000};
+// A failed connect is explained by a TCP probe of the broker's address; this bounds it.
+constexpr std::chrono::milliseconds k_tcp_probe_timeout{1000};
 
 bool starts_with(const std::string& s, const std::string& prefix) { return s.compare(0, prefix.size(), prefix) == 0; }
 
@@ -157,7 +160,8 @@ struct mqtt_link::impl {
       }
       ssl.set_enable_server_cert_auth(true);  // the broker's chain must verify...
       ssl.set_verify(true);                   // ...and its name must match the host in the URI
-      ssl.set_error_handler([this](const std::string& text) { on_ssl_error(text); });
+      // No ssl.set_error_handler(): connect() copies the options and the C library keeps a
+      // pointer into that copy, which is gone when the handler runs (found by ASan).
       connect_options_.set_ssl(std::move(ssl));
     }
 
@@ -378,19 +382,10 @@ struct mqtt_link::impl {
         }
         failure = "no answer within " + std::to_string(options_.connect_timeout.count()) + " s";
       } catch (const ::mqtt::exception& e) {
-        failure = describe(e);
-        if (e.get_return_code() == MQTTASYNC_FAILURE && starts_with(options_.broker.uri, "ssl://")) {
-          // The library's own host-name check fails without any TLS error text.
-          failure += " (no TCP connection, or the TLS handshake failed: the broker's certificate must chain to "
-                     "broker.tls.ca_file and name the host in broker.uri)";
-        }
+        failure = describe(e) + explain_connect_failure(e.get_return_code());
       }
       {
         std::lock_guard<std::mutex> lock(mutex_);
-        if (!last_ssl_error_.empty()) {
-          failure += "; TLS: " + last_ssl_error_;
-          last_ssl_error_.clear();
-        }
         last_connect_error_ = failure;
       }
       report(link_report_level::warning, "connect to " + options_.broker.uri + " as " + options_.broker.client_id +
@@ -404,6 +399,27 @@ struct mqtt_link::impl {
       }
       backoff = std::min(backoff * 2, options_.reconnect_max);
     }
+  }
+
+  // Paho says "TCP/TLS connect failure" for a refused port and a failed handshake alike.
+  std::string explain_connect_failure(int rc) const {
+    if (rc != MQTTASYNC_FAILURE) {
+      return {};
+    }
+    const auto where = detail::split_broker_uri(options_.broker.uri);
+    if (!where) {
+      return {};
+    }
+    if (!detail::tcp_port_accepts(*where, k_tcp_probe_timeout)) {
+      return " (nothing accepts TCP connections at " + where->host + ":" + where->port + ")";
+    }
+    if (starts_with(options_.broker.uri, "ssl://")) {
+      return " (the port accepts TCP, so the TLS handshake failed: the broker's certificate must chain to " +
+             (options_.broker.tls && !options_.broker.tls->ca_file.empty() ? options_.broker.tls->ca_file
+                                                                             : std::string("the system's CAs")) +
+             " and name the host " + where->host + ")";
+    }
+    return {};
   }
 
   bool stopping() const {
@@ -510,7 +526,6 @@ struct mqtt_link::impl {
       send_paused_ = false;
       send_failure_reported_ = false;
       last_connect_error_.clear();
-      last_ssl_error_.clear();
       epoch = ++epoch_;
       connection_number = ++connections_;
       (void)box_.on_connection_lost();  // anything still in flight belongs to the old connection
@@ -658,19 +673,6 @@ struct mqtt_link::impl {
     changed_.notify_all();
   }
 
-  void on_ssl_error(const std::string& text) {
-    const handler_scope scope(*this);
-    if (!scope) {
-      return;
-    }
-    std::string trimmed = text;
-    while (!trimmed.empty() && (trimmed.back() == '\n' || trimmed.back() == '\r' || trimmed.back() == ' ')) {
-      trimmed.pop_back();
-    }
-    std::lock_guard<std::mutex> lock(mutex_);
-    last_ssl_error_ = std::move(trimmed);
-  }
-
   // ---- helpers ------------------------------------------------------------------------
 
   void queue_locked(outbound_message message) {
@@ -729,7 +731,6 @@ struct mqtt_link::impl {
   std::uint64_t send_failures_ = 0;
   std::uint64_t rejected_ = 0;
   std::string last_connect_error_;
-  std::string last_ssl_error_;
 
   inbound_queue inbound_;
   forwarding_listener delivery_listener_;
