@@ -46,11 +46,13 @@ bool stderr_is_journal() {
 
 std::shared_ptr<spdlog::logger> make_logger(bool journal_format) {
   auto sink = std::make_shared<spdlog::sinks::stderr_sink_mt>();
-  auto formatter = std::make_unique<spdlog::pattern_formatter>();
+  std::unique_ptr<spdlog::pattern_formatter> formatter;
   if (journal_format) {
+    formatter = std::make_unique<spdlog::pattern_formatter>();
     formatter->add_flag<syslog_priority_flag>('*').set_pattern("%*%v");
   } else {
-    formatter->set_pattern("%Y-%m-%dT%H:%M:%S.%eZ %l %v", spdlog::pattern_time_type::utc);
+    formatter = std::make_unique<spdlog::pattern_formatter>("%Y-%m-%dT%H:%M:%S.%eZ %l %v",
+                                                            spdlog::pattern_time_type::utc);
   }
   sink->set_formatter(std::move(formatter));
   auto log = std::make_shared<spdlog::logger>("dewmargind", std::move(sink));

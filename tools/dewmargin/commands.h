@@ -32,5 +32,16 @@ struct replay_options {
 };
 // Runs readings through the decision core on simulated time; prints events (and states).
 int run_replay(const replay_options& options, std::ostream& out, std::ostream& err);
+// `dewmargin history`: the event log of a history database. Options are kept as text (empty:
+// not given) so that each bad value is reported exactly; run_history validates them.
+struct history_options {
+  std::string db;
+  std::string zone;
+  std::string since_text;
+  std::string until_text;
+  std::string kind;
+  std::string format = "table";  // table | csv | json
+};
+int run_history(const history_options& options, std::ostream& out, std::ostream& err);
 
 }  // namespace dewmargin::cli

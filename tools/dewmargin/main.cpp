@@ -23,7 +23,8 @@ int main(int argc, char** argv) {
   app.footer(std::string("\nExamples:\n"
                          "  dewmargin dewpoint --temp 24 --rh 50\n"
                          "  dewmargin check /etc/dewmargin/dewmargin.yaml\n"
-                         "  dewmargin replay --config site.yaml --readings readings.csv\n\n") +
+                         "  dewmargin replay --config site.yaml --readings readings.csv\n"
+                         "  dewmargin history --db /var/lib/dewmargin/history.db --zone level2-east --since 2026-07-14\n\n") +
              k_caution);
   app.require_subcommand(1);
   app.set_version_flag("--version", "dewmargin 0.1.0");
@@ -63,6 +64,38 @@ int main(int argc, char** argv) {
                              "holds commas or quotes. Lines starting with # are comments.\n\n") +
                  k_caution);
   replay->callback([&] { exit_code = run_replay(rp, std::cout, std::cerr); });
+
+  history_options hist;
+  auto* history = app.add_subcommand("history", "Print the event log of a history database");
+  history->add_option("--db", hist.db, "History database (SQLite); opened read-only")->required()->type_name("FILE");
+  history->add_option("--zone", hist.zone, "Only events of this zone (matches any subject id: also a loop or dehumidifier)")
+      ->type_name("ID");
+  history->add_option("--since", hist.since_text, "Only events at or after TIME")->type_name("TIME");
+  history->add_option("--until", hist.until_text, "Only events before TIME; a bare date means up to the end of that day")
+      ->type_name("TIME");
+  history->add_option("--kind", hist.kind,
+                      "Only events of this kind: band, ack, shelve, unshelve, valve, setpoint, dehumidify, input, "
+                      "rejected, service")
+      ->type_name("KIND");
+  history->add_option("--format", hist.format, "table (default), csv or json")->type_name("FORMAT");
+  history->footer(std::string(
+                      "\nTIME is ISO 8601: 2026-07-14T13:00:00Z, 2026-07-14T15:00:00+02:00, or a date (2026-07-14).\n"
+                      "A time without a zone is taken as UTC; times are printed in UTC. --since is inclusive and\n"
+                      "--until exclusive, but a bare date for --until includes that whole day, so\n"
+                      "--since 2026-07-14 --until 2026-07-14 is the 14th from 00:00Z to 24:00Z.\n\n"
+                      "Formats:\n"
+                      "  table  aligned columns: time, subject, kind, from → to, details (key=value)\n"
+                      "  csv    RFC 4180 with CRLF line ends; header ts,subject_type,subject,kind,from,to,details;\n"
+                      "         details is a JSON object of the event's other fields\n"
+                      "  json   one JSON array of the stored event objects (as published), one per line\n"
+                      "Events are ordered by time, then by the order they were stored.\n\n"
+                      "Exit codes: 0 ok, also when nothing matches (table: \"no events\", csv: the header only,\n"
+                      "json: []); 1 the database is missing, unreadable, corrupt, not a dewmargin history\n"
+                      "database, or of a newer schema; 2 bad usage (bad TIME, unknown kind or format).\n\n"
+                      "Example:\n"
+                      "  dewmargin history --db /var/lib/dewmargin/history.db --kind band --since 2026-07-01 --format csv\n\n") +
+                  k_caution);
+  history->callback([&] { exit_code = run_history(hist, std::cout, std::cerr); });
 
   try {
     app.parse(argc, argv);

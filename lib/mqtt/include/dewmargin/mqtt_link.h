@@ -1,0 +1,136 @@
+#pragma once
+// The service's one connection to the MQTT broker (Paho MQTT C++ 1.2.0, MQTT 3.1.1, QoS 1).
+//
+// What it guarantees:
+// - Session: stable client id, persistent session (clean session off), so the broker
+//   queues QoS 1 commands for us while we are away; still it subscribes again after every
+//   (re)connect, because a broker that lost its state also lost our subscriptions.
+// - Presence: Last Will `offline_will_payload`, retained, QoS 1, on status_topic; after each
+//   subscribe acknowledgement it publishes `online_payload` retained; shutdown() publishes
+//   a final status itself (a clean DISCONNECT suppresses the will).
+// - Outbound: publish() never blocks. Messages wait in an outbox (dewmargin/outbox.h) until
+//   their QoS 1 delivery completes; on connection loss the ones in flight are sent again
+//   (at least once: a subscriber may see a duplicate). The last retained message of each
+//   topic is kept and republished after every reconnect, since a broker restarted without
+//   persistence has forgotten it.
+// - Inbound: a bounded queue (dewmargin/inbound_queue.h); overflow is counted, command
+//   topics (must_keep_prefixes) are never dropped.
+// - Connect: start() returns at once. The first connect is retried with bounded back-off
+//   (the library's automatic reconnect only covers connections that once succeeded);
+//   afterwards the library reconnects automatically with the same bounds.
+//
+// Threads:
+// - Caller threads (the service's worker): publish(), next_message(), stats(), connected(),
+//   ready(), last_connect_error(), shutdown(). All of them only take the link's lock briefly;
+//   next_message() waits on the inbound queue alone.
+// - The link's sender thread: makes the first connect, then moves messages from the
+//   outbox to the client library (up to max_in_flight at a time). It is the only thread
+//   that waits on a library token (the connect token, bounded).
+// - The library's one callback thread runs every handler: message arrived, connected,
+//   connection lost, subscribe/publish completion. Handlers never wait on a token; they
+//   take the link's lock briefly, and at most start an asynchronous subscribe or publish.
+// - `report` is called from any of these threads, never with the link's lock held: it must
+//   be thread-safe. It never receives the password.
+//
+// Paho notes that shaped this (measured with Paho C 1.3.12, see the integration tests):
+// inbound messages arrive through set_message_callback, not the consume queue (whose
+// capacity, when set, makes the library thread block) nor set_callback (lock-order problem);
+// the client is created without persistence, so nothing is written to the working directory.
+#include <array>
+#include <chrono>
+#include <cstddef>
+#include <cstdint>
+#include <functional>
+#include <memory>
+#include <string>
+#include <vector>
+
+#include "dewmargin/config.h"
+#include "dewmargin/engine_output.h"
+#include "dewmargin/inbound_queue.h"
+#include "dewmargin/outbox.h"
+#include "dewmargin/result.h"
+
+namespace dewmargin {
+
+enum class link_report_level { info, warning, error };
+
+struct mqtt_link_options {
+  broker_config broker;                      // uri tcp:// or ssl://, client_id required
+  std::string status_topic;                  // <prefix>/status; empty: no will, no status
+  std::string online_payload;                // retained on status_topic after each subscribe
+  std::string offline_will_payload;          // the Last Will, retained, QoS 1
+  std::vector<std::string> subscriptions;    // topic filters, subscribed at QoS 1
+  std::vector<std::string> must_keep_prefixes;  // inbound topics never dropped ("<prefix>/cmd/")
+  std::size_t inbound_capacity = 10000;      // messages
+  std::size_t outbox_capacity = 10000;       // messages
+  std::size_t max_in_flight = 64;            // about 100 QoS 1 in flight gives Paho error -12
+  std::chrono::seconds reconnect_min{1};     // back-off bounds; the library counts whole seconds
+  std::chrono::seconds reconnect_max{30};
+  std::chrono::seconds connect_timeout{10};
+  std::function<void(link_report_level, const std::string&)> report;  // may be empty
+};
+
+struct mqtt_link_stats {
+  std::uint64_t received = 0;            // inbound messages from the broker
+  std::uint64_t dropped_inbound = 0;     // lost to inbound overflow
+  std::uint64_t kept_over_capacity = 0;  // must-keep inbound messages queued past the capacity
+  std::uint64_t published = 0;           // outbox sends accepted by the library (resends included)
+  std::uint64_t delivered = 0;           // outbox entries acknowledged by the broker
+  std::uint64_t send_failures = 0;       // sends the library refused or failed (sent again later)
+  std::uint64_t rejected = 0;            // messages refused for good (invalid topic)
+  std::array<std::uint64_t, k_message_class_count> dropped_outbox{};  // by class_index(message_class)
+  std::uint64_t superseded = 0;          // keyed messages replaced by a newer one (not a loss)
+  std::uint64_t connections = 0;         // successful connects, the first included
+  std::uint64_t reconnects = 0;          // connections after the first
+  std::uint64_t connection_losses = 0;
+  std::size_t inbound_queued = 0;
+  std::size_t outbox_size = 0;
+  std::size_t outbox_in_flight = 0;
+
+  [[nodiscard]] std::uint64_t dropped_outbox_of(message_class cls) const { return dropped_outbox[class_index(cls)]; }
+};
+
+class mqtt_link {
+ public:
+  // Validates the options, reads the password file and creates the client; nothing
+  // touches the network yet. Errors name the field and, for files, the path.
+  [[nodiscard]] static result<mqtt_link> create(mqtt_link_options options);
+
+  mqtt_link(mqtt_link&&) noexcept;
+  mqtt_link& operator=(mqtt_link&&) noexcept;
+  mqtt_link(const mqtt_link&) = delete;
+  mqtt_link& operator=(const mqtt_link&) = delete;
+  // Without a prior shutdown(): shutdown(offline_will_payload, 1 s), so the retained
+  // status does not stay "online" (the destructor's DISCONNECT would suppress the will).
+  ~mqtt_link();
+
+  // Starts the sender thread, which connects in the background. Returns at once.
+  void start();
+
+  // Worker thread: waits up to timeout for the next inbound message.
+  bool next_message(inbound_message& out, std::chrono::milliseconds timeout);
+
+  // Queues a message for QoS 1 delivery. Never blocks on the network. A topic that is
+  // empty or holds a wildcard is refused (reported, counted in `rejected`).
+  void publish(outbound_message message);
+
+  [[nodiscard]] bool connected() const;
+  // Connected, subscribed (acknowledged) on the current connection and online published.
+  [[nodiscard]] bool ready() const;
+  // Why the last connect attempt failed; empty once connected.
+  [[nodiscard]] std::string last_connect_error() const;
+  [[nodiscard]] mqtt_link_stats stats() const;
+
+  // Publishes final_status_payload retained on status_topic (unless empty), waits up to
+  // timeout for the outbox to drain, then disconnects (only if connected), stops the
+  // sender thread and destroys the client. Idempotent; the link is dead afterwards.
+  void shutdown(const std::string& final_status_payload, std::chrono::milliseconds timeout);
+
+ private:
+  struct impl;
+  explicit mqtt_link(std::unique_ptr<impl> state);
+  std::unique_ptr<impl> impl_;
+};
+
+}  // namespace dewmargin

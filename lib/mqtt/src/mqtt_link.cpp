@@ -1,0 +1,847 @@
+#include "dewmargin/mqtt_link.h"
+
+#include <mqtt/async_client.h>
+
+#include <algorithm>
+#include <cerrno>
+#include <cmath>
+#include <condition_variable>
+#include <cstdio>
+#include <cstring>
+#include <mutex>
+#include <optional>
+#include <thread>
+#include <unordered_map>
+#include <utility>
+
+#include "dewmargin/secret_file.h"
+#include "tcp_probe.h"
+
+namespace dewmargin {
+namespace {
+
+constexpr int k_qos = 1;
+// The library buffers the online status and subscribe requests beside our own publishes:
+// its buffer and in-flight limits get this much room above max_in_flight.
+constexpr int k_library_headroom = 16;
+// Slice in which the sender thread looks at the stop flag while it waits on the connect.
+constexpr std::chrono::milliseconds k_wait_slice{100};
+// After a refused send the sender waits this long (or for a delivery or connection event).
+constexpr std::chrono::milliseconds k_send_retry_pause{200};
+// How long shutdown waits for a handler still running on the library thread.
+constexpr std::chrono::milliseconds k_handler_drain{2000};
+constexpr std::chrono::milliseconds k_min_disconnect_timeout{200};
+constexpr std::chrono::milliseconds k_destructor_shutdown_timeout{1000};
+// A failed connect is explained by a TCP probe of the broker's address; this bounds it.
+constexpr std::chrono::milliseconds k_tcp_probe_timeout{1000};
+
+bool starts_with(const std::string& s, const std::string& prefix) { return s.compare(0, prefix.size(), prefix) == 0; }
+
+// A reason why a topic cannot be published to, or empty.
+std::string invalid_publish_topic(const std::string& topic) {
+  if (topic.empty()) {
+    return "the topic is empty";
+  }
+  if (topic.find_first_of("+#") != std::string::npos) {
+    return "a wildcard (+ or #) is not allowed in a publish topic";
+  }
+  if (topic.find('\0') != std::string::npos) {
+    return "the topic holds a NUL character";
+  }
+  return {};
+}
+
+std::string check_readable(const std::string& field, const std::string& path) {
+  const std::unique_ptr<std::FILE, int (*)(std::FILE*)> f(std::fopen(path.c_str(), "rb"), &std::fclose);
+  if (!f) {
+    return field + " " + path + ": cannot read: " + std::strerror(errno);
+  }
+  return {};
+}
+
+void* to_context(std::uint64_t value) { return reinterpret_cast<void*>(static_cast<std::uintptr_t>(value)); }
+std::uint64_t from_context(void* context) { return static_cast<std::uint64_t>(reinterpret_cast<std::uintptr_t>(context)); }
+
+// Return codes after which the same message will never be accepted.
+bool is_permanent_publish_error(int rc) {
+  return rc == MQTTASYNC_BAD_UTF8_STRING || rc == MQTTASYNC_NULL_PARAMETER || rc == MQTTASYNC_TOPICNAME_TRUNCATED ||
+         rc == MQTTASYNC_BAD_STRUCTURE || rc == MQTTASYNC_BAD_QOS;
+}
+
+std::string describe(const ::mqtt::exception& e) {
+  std::string text = e.what();
+  // For MQTT 3.1.1 a refused CONNECT carries the CONNACK return code.
+  switch (e.get_return_code()) {
+    case 1: text += " (broker: unacceptable protocol version)"; break;
+    case 2: text += " (broker: client identifier rejected)"; break;
+    case 3: text += " (broker: server unavailable)"; break;
+    case 4: text += " (broker: bad user name or password)"; break;
+    case 5: text += " (broker: not authorised)"; break;
+    default: break;
+  }
+  return text;
+}
+
+// An iaction_listener that forwards to two functions (the library wants an object).
+class forwarding_listener final : public ::mqtt::iaction_listener {
+ public:
+  using handler = std::function<void(const ::mqtt::token&)>;
+  forwarding_listener(handler on_success, handler on_failure)
+      : on_success_(std::move(on_success)), on_failure_(std::move(on_failure)) {}
+
+  void on_success(const ::mqtt::token& tok) override { on_success_(tok); }
+  void on_failure(const ::mqtt::token& tok) override { on_failure_(tok); }
+
+ private:
+  handler on_success_;
+  handler on_failure_;
+};
+
+enum class link_phase { created, running, draining, closed };
+
+}  // namespace
+
+struct mqtt_link::impl {
+  explicit impl(mqtt_link_options options)
+      : options_(std::move(options)),
+        box_(options_.outbox_capacity),
+        inbound_(options_.inbound_capacity, options_.must_keep_prefixes),
+        delivery_listener_([this](const ::mqtt::token& tok) { on_delivery_success(tok); },
+                           [this](const ::mqtt::token& tok) { on_delivery_failure(tok); }),
+        subscribe_listener_([this](const ::mqtt::token& tok) { on_subscribe_success(tok); },
+                            [this](const ::mqtt::token& tok) { on_subscribe_failure(tok); }),
+        status_listener_([](const ::mqtt::token&) {},
+                         [this](const ::mqtt::token& tok) { on_status_failure(tok); }) {}
+
+  impl(const impl&) = delete;
+  impl& operator=(const impl&) = delete;
+  ~impl() { shutdown(options_.offline_will_payload, k_destructor_shutdown_timeout); }
+
+  // ---- set-up -------------------------------------------------------------------------
+
+  std::string build(const std::string& password) {
+    const bool tls = starts_with(options_.broker.uri, "ssl://");
+
+    ::mqtt::create_options create(MQTTVERSION_3_1_1);
+    create.set_send_while_disconnected(false);  // the outbox buffers; a refused send goes back to it
+    create.set_max_buffered_messages(static_cast<int>(options_.max_in_flight) + k_library_headroom);
+    try {
+      // No persistence object: Paho's file persistence would write into the working directory.
+      client_ = std::make_unique<::mqtt::async_client>(options_.broker.uri, options_.broker.client_id, create,
+                                                       nullptr);
+    } catch (const ::mqtt::exception& e) {
+      return "broker.uri " + options_.broker.uri + ": the client library refused it: " + e.what();
+    }
+
+    connect_options_.set_mqtt_version(MQTTVERSION_3_1_1);
+    connect_options_.set_clean_session(false);
+    connect_options_.set_keep_alive_interval(static_cast<int>(std::lround(options_.broker.keepalive_s)));
+    connect_options_.set_connect_timeout(static_cast<int>(options_.connect_timeout.count()));
+    connect_options_.set_automatic_reconnect(static_cast<int>(options_.reconnect_min.count()),
+                                             static_cast<int>(options_.reconnect_max.count()));
+    connect_options_.set_max_inflight(static_cast<int>(options_.max_in_flight) + k_library_headroom);
+    if (!options_.status_topic.empty()) {
+      connect_options_.set_will(
+          ::mqtt::will_options(options_.status_topic, options_.offline_will_payload, k_qos, true));
+    }
+    if (!options_.broker.username.empty()) {
+      connect_options_.set_user_name(options_.broker.username);
+    }
+    if (!password.empty()) {
+      connect_options_.set_password(password);
+    }
+    if (tls) {
+      ::mqtt::ssl_options ssl;
+      if (options_.broker.tls) {
+        const tls_config& t = *options_.broker.tls;
+        if (!t.ca_file.empty()) ssl.set_trust_store(t.ca_file);
+        if (!t.cert_file.empty()) ssl.set_key_store(t.cert_file);
+        if (!t.key_file.empty()) ssl.set_private_key(t.key_file);
+      }
+      ssl.set_enable_server_cert_auth(true);  // the broker's chain must verify...
+      ssl.set_verify(true);                   // ...and its name must match the host in the URI
+      // No ssl.set_error_handler(): connect() copies the options and the C library keeps a
+      // pointer into that copy, which is gone when the handler runs (found by ASan).
+      connect_options_.set_ssl(std::move(ssl));
+    }
+
+    client_->set_message_callback([this](::mqtt::const_message_ptr m) { on_message(m); });
+    client_->set_connected_handler([this](const std::string& cause) { on_connected(cause); });
+    client_->set_connection_lost_handler([this](const std::string& cause) { on_connection_lost(cause); });
+    return {};
+  }
+
+  // ---- caller threads -----------------------------------------------------------------
+
+  void start() {
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      if (phase_ != link_phase::created) {
+        return;
+      }
+      phase_ = link_phase::running;
+    }
+    sender_ = std::thread([this] { run_sender(); });
+  }
+
+  void publish(outbound_message message) {
+    if (const std::string why = invalid_publish_topic(message.topic); !why.empty()) {
+      {
+        std::lock_guard<std::mutex> lock(mutex_);
+        ++rejected_;
+      }
+      report(link_report_level::error, "publish refused, topic \"" + message.topic + "\": " + why);
+      return;
+    }
+    bool closed = false;
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      closed = phase_ == link_phase::closed;
+      if (closed) {
+        ++rejected_;
+      } else {
+        queue_locked(std::move(message));
+      }
+    }
+    if (closed) {
+      report(link_report_level::error, "publish after shutdown refused, topic " + message.topic);
+      return;
+    }
+    changed_.notify_all();
+    report_outbox_drops();
+  }
+
+  bool next_message(inbound_message& out, std::chrono::milliseconds timeout) {
+    if (inbound_.pop(out, timeout)) {
+      return true;
+    }
+    std::lock_guard<std::mutex> lock(mutex_);
+    inbound_drop_reported_ = false;  // the queue ran empty: report the next overflow again
+    return false;
+  }
+
+  bool connected() const {
+    std::lock_guard<std::mutex> lock(mutex_);
+    return connected_;
+  }
+
+  bool ready() const {
+    std::lock_guard<std::mutex> lock(mutex_);
+    return connected_ && session_ready_;
+  }
+
+  std::string last_connect_error() const {
+    std::lock_guard<std::mutex> lock(mutex_);
+    return last_connect_error_;
+  }
+
+  mqtt_link_stats stats() const {
+    const inbound_queue_counters in = inbound_.counters();
+    std::lock_guard<std::mutex> lock(mutex_);
+    mqtt_link_stats s;
+    s.received = in.received;
+    s.dropped_inbound = in.dropped;
+    s.kept_over_capacity = in.kept_over_capacity;
+    s.inbound_queued = in.queued;
+    s.published = published_;
+    s.delivered = box_.delivered();
+    s.send_failures = send_failures_;
+    s.rejected = rejected_ + box_.rejected();
+    for (std::size_t i = 0; i < k_message_class_count; ++i) {
+      s.dropped_outbox[i] = box_.dropped(static_cast<message_class>(i));
+    }
+    s.superseded = box_.superseded();
+    s.connections = connections_;
+    s.reconnects = connections_ > 0 ? connections_ - 1 : 0;
+    s.connection_losses = connection_losses_;
+    s.outbox_size = box_.size();
+    s.outbox_in_flight = box_.in_flight();
+    return s;
+  }
+
+  void shutdown(const std::string& final_status_payload, std::chrono::milliseconds timeout) {
+    const auto deadline = std::chrono::steady_clock::now() + timeout;
+    bool was_running = false;
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      if (phase_ == link_phase::draining || phase_ == link_phase::closed) {
+        return;
+      }
+      was_running = phase_ == link_phase::running;
+      phase_ = link_phase::draining;  // from now on no "online" is published
+      if (was_running && !options_.status_topic.empty() && !final_status_payload.empty()) {
+        queue_locked(outbound_message{options_.status_topic, final_status_payload, true, message_class::state});
+      }
+    }
+    changed_.notify_all();
+
+    std::size_t undelivered = 0;
+    if (was_running) {
+      {
+        std::unique_lock<std::mutex> lock(mutex_);
+        changed_.wait_until(lock, deadline, [&] { return box_.empty(); });
+        undelivered = box_.size();
+        stop_requested_ = true;
+      }
+      changed_.notify_all();
+      sender_.join();
+    }
+
+    if (client_ && client_->is_connected()) {
+      const auto left = std::chrono::duration_cast<std::chrono::milliseconds>(deadline - std::chrono::steady_clock::now());
+      const auto disconnect_timeout = std::max(left, k_min_disconnect_timeout);
+      try {
+        if (!client_->disconnect(disconnect_timeout)->wait_for(disconnect_timeout + k_wait_slice)) {
+          report(link_report_level::warning, "disconnect from " + options_.broker.uri + " timed out");
+        }
+      } catch (const ::mqtt::exception& e) {
+        report(link_report_level::warning, "disconnect from " + options_.broker.uri + " failed: " + describe(e));
+      }
+    }
+
+    {
+      // No handler may run once the client is gone: close the gate, wait for those inside.
+      std::unique_lock<std::mutex> lock(mutex_);
+      gate_closed_ = true;
+      if (!handlers_idle_.wait_for(lock, k_handler_drain, [&] { return handlers_active_ == 0; })) {
+        lock.unlock();
+        report(link_report_level::error, "a client library handler did not return within 2 s at shutdown");
+      }
+    }
+    if (client_) {
+      try {
+        client_->disable_callbacks();
+      } catch (const ::mqtt::exception&) {
+        // Refused while the library still counts itself connected; the gate keeps handlers out.
+      }
+      client_.reset();
+    }
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      phase_ = link_phase::closed;
+      connected_ = false;
+      session_ready_ = false;
+    }
+    if (was_running) {
+      report(undelivered == 0 ? link_report_level::info : link_report_level::warning,
+             "link to " + options_.broker.uri + " shut down, " + std::to_string(undelivered) +
+                 " message(s) undelivered");
+    }
+  }
+
+  // ---- sender thread ------------------------------------------------------------------
+
+  void run_sender() {
+    if (!connect_first_time()) {
+      return;
+    }
+    while (true) {
+      std::vector<outbox_entry> batch;
+      {
+        std::unique_lock<std::mutex> lock(mutex_);
+        const auto can_send = [&] {
+          return session_ready_ && !send_paused_ && box_.pending() > 0 && box_.in_flight() < options_.max_in_flight;
+        };
+        while (!stop_requested_ && !can_send()) {
+          if (send_paused_) {
+            changed_.wait_for(lock, k_send_retry_pause);
+            send_paused_ = false;
+          } else {
+            changed_.wait(lock);
+          }
+        }
+        if (stop_requested_) {
+          return;
+        }
+        batch = box_.take_next_to_send(options_.max_in_flight);
+      }
+      send_batch(batch);
+    }
+  }
+
+  // Retries until the first connect succeeds (true) or the link is stopped (false). The
+  // library's automatic reconnect takes over after the first success.
+  bool connect_first_time() {
+    auto backoff = options_.reconnect_min;
+    while (true) {
+      std::string failure;
+      try {
+        const ::mqtt::token_ptr tok = client_->connect(connect_options_);
+        const auto give_up = std::chrono::steady_clock::now() + options_.connect_timeout + std::chrono::seconds(2);
+        bool done = false;
+        while (!(done = tok->wait_for(k_wait_slice))) {
+          if (stopping() || std::chrono::steady_clock::now() > give_up) {
+            break;
+          }
+        }
+        if (done) {
+          return true;  // the connected handler subscribes and sets the session up
+        }
+        if (stopping()) {
+          return false;  // shutdown destroys the client with the attempt pending (tested)
+        }
+        failure = "no answer within " + std::to_string(options_.connect_timeout.count()) + " s";
+      } catch (const ::mqtt::exception& e) {
+        failure = describe(e) + explain_connect_failure(e.get_return_code());
+      }
+      {
+        std::lock_guard<std::mutex> lock(mutex_);
+        last_connect_error_ = failure;
+      }
+      report(link_report_level::warning, "connect to " + options_.broker.uri + " as " + options_.broker.client_id +
+                                             " failed: " + failure + "; next attempt in " +
+                                             std::to_string(backoff.count()) + " s");
+      {
+        std::unique_lock<std::mutex> lock(mutex_);
+        if (changed_.wait_for(lock, backoff, [&] { return stop_requested_; })) {
+          return false;
+        }
+      }
+      backoff = std::min(backoff * 2, options_.reconnect_max);
+    }
+  }
+
+  // Paho says "TCP/TLS connect failure" for a refused port and a failed handshake alike.
+  std::string explain_connect_failure(int rc) const {
+    if (rc != MQTTASYNC_FAILURE) {
+      return {};
+    }
+    const auto where = detail::split_broker_uri(options_.broker.uri);
+    if (!where) {
+      return {};
+    }
+    if (!detail::tcp_port_accepts(*where, k_tcp_probe_timeout)) {
+      return " (nothing accepts TCP connections at " + where->host + ":" + where->port + ")";
+    }
+    if (starts_with(options_.broker.uri, "ssl://")) {
+      return " (the port accepts TCP, so the TLS handshake failed: the broker's certificate must chain to " +
+             (options_.broker.tls && !options_.broker.tls->ca_file.empty() ? options_.broker.tls->ca_file
+                                                                             : std::string("the system's CAs")) +
+             " and name the host " + where->host + ")";
+    }
+    return {};
+  }
+
+  bool stopping() const {
+    std::lock_guard<std::mutex> lock(mutex_);
+    return stop_requested_;
+  }
+
+  void send_batch(const std::vector<outbox_entry>& batch) {
+    for (std::size_t i = 0; i < batch.size(); ++i) {
+      const outbox_entry& e = batch[i];
+      try {
+        (void)client_->publish(::mqtt::make_message(e.message.topic, e.message.payload, k_qos, e.message.retained),
+                               to_context(e.id), delivery_listener_);
+        std::lock_guard<std::mutex> lock(mutex_);
+        ++published_;
+      } catch (const ::mqtt::exception& ex) {
+        const int rc = ex.get_return_code();
+        if (is_permanent_publish_error(rc)) {
+          {
+            std::lock_guard<std::mutex> lock(mutex_);
+            (void)box_.on_rejected(e.id);
+          }
+          report(link_report_level::error, "publish to " + e.message.topic + " refused for good: " + describe(ex));
+          continue;
+        }
+        // Not sent (not connected, library buffer full): this one and the rest of the
+        // batch go back to pending, in order, and the sender pauses briefly.
+        bool first_in_connection = false;
+        {
+          std::lock_guard<std::mutex> lock(mutex_);
+          for (std::size_t j = i; j < batch.size(); ++j) {
+            (void)box_.on_send_failed(batch[j].id);
+          }
+          ++send_failures_;
+          send_paused_ = true;
+          first_in_connection = !send_failure_reported_;
+          send_failure_reported_ = true;
+        }
+        if (first_in_connection) {
+          report(link_report_level::warning, "publish to " + e.message.topic + " not accepted, will retry: " +
+                                                 describe(ex));
+        }
+        return;
+      }
+    }
+  }
+
+  // ---- library thread (handlers) ------------------------------------------------------
+
+  // Handlers run only while the gate is open, and shutdown waits for those inside.
+  class handler_scope {
+   public:
+    explicit handler_scope(impl& owner) : owner_(owner) {
+      std::lock_guard<std::mutex> lock(owner_.mutex_);
+      entered_ = !owner_.gate_closed_;
+      if (entered_) ++owner_.handlers_active_;
+    }
+    ~handler_scope() {
+      if (!entered_) return;
+      std::lock_guard<std::mutex> lock(owner_.mutex_);
+      if (--owner_.handlers_active_ == 0) owner_.handlers_idle_.notify_all();
+    }
+    handler_scope(const handler_scope&) = delete;
+    handler_scope& operator=(const handler_scope&) = delete;
+    explicit operator bool() const { return entered_; }
+
+   private:
+    impl& owner_;
+    bool entered_ = false;
+  };
+
+  void on_message(const ::mqtt::const_message_ptr& m) {
+    const handler_scope scope(*this);
+    if (!scope || !m) {
+      return;
+    }
+    if (!inbound_.push(inbound_message{m->get_topic(), m->to_string(), m->is_retained()})) {
+      return;
+    }
+    bool first = false;
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      first = !inbound_drop_reported_;
+      inbound_drop_reported_ = true;
+    }
+    if (first) {
+      report(link_report_level::warning, "inbound queue full (" + std::to_string(options_.inbound_capacity) +
+                                             " messages): dropping the oldest non-command messages");
+    }
+  }
+
+  void on_connected(const std::string& /*cause*/) {
+    const handler_scope scope(*this);
+    if (!scope) {
+      return;
+    }
+    std::uint64_t epoch = 0;
+    std::uint64_t connection_number = 0;
+    std::size_t queued_again = 0;
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      connected_ = true;
+      session_ready_ = false;
+      send_paused_ = false;
+      send_failure_reported_ = false;
+      last_connect_error_.clear();
+      epoch = ++epoch_;
+      connection_number = ++connections_;
+      (void)box_.on_connection_lost();  // anything still in flight belongs to the old connection
+      if (connection_number > 1) {
+        // The broker may have restarted without persistence: give it every retained topic again.
+        for (const auto& [topic, message] : last_retained_) {
+          (void)box_.push(message);
+          ++queued_again;
+        }
+      }
+    }
+    report(link_report_level::info,
+           "connected to " + options_.broker.uri + " as " + options_.broker.client_id +
+               (connection_number > 1 ? " (reconnect " + std::to_string(connection_number - 1) + ", " +
+                                            std::to_string(queued_again) + " retained message(s) queued again)"
+                                      : std::string{}));
+    if (options_.subscriptions.empty()) {
+      finish_session(epoch);
+      return;
+    }
+    try {
+      const auto filters = ::mqtt::string_collection::create(options_.subscriptions);
+      const ::mqtt::iasync_client::qos_collection qos(options_.subscriptions.size(), k_qos);
+      (void)client_->subscribe(filters, qos, to_context(epoch), subscribe_listener_);
+    } catch (const ::mqtt::exception& e) {
+      report(link_report_level::error, "subscribe request failed: " + describe(e));
+    }
+  }
+
+  void on_subscribe_success(const ::mqtt::token& tok) {
+    const handler_scope scope(*this);
+    if (!scope) {
+      return;
+    }
+    std::string refused;
+    try {
+      const auto codes = tok.get_subscribe_response().get_reason_codes();
+      for (std::size_t i = 0; i < codes.size() && i < options_.subscriptions.size(); ++i) {
+        if (codes[i] >= ::mqtt::ReasonCode::UNSPECIFIED_ERROR) {
+          refused += (refused.empty() ? "" : ", ") + options_.subscriptions[i];
+        }
+      }
+    } catch (const std::exception&) {
+      // No per-topic codes in this response: the acknowledgement itself is the success.
+    }
+    if (!refused.empty()) {
+      report(link_report_level::error, "broker refused the subscription to: " + refused + "; link stays not ready");
+      return;
+    }
+    finish_session(from_context(tok.get_user_context()));
+  }
+
+  void on_subscribe_failure(const ::mqtt::token& tok) {
+    const handler_scope scope(*this);
+    if (!scope) {
+      return;
+    }
+    report(link_report_level::error, "subscribe failed (return code " + std::to_string(tok.get_return_code()) +
+                                         "); link stays not ready until the next connect");
+  }
+
+  // Subscribed (or nothing to subscribe): announce online, then let the sender go.
+  void finish_session(std::uint64_t epoch) {
+    bool announce = false;
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      if (epoch != epoch_ || !connected_) {
+        return;  // an answer from an older connection
+      }
+      announce = phase_ == link_phase::running && !options_.status_topic.empty();
+    }
+    if (announce) {
+      try {
+        (void)client_->publish(::mqtt::make_message(options_.status_topic, options_.online_payload, k_qos, true),
+                               nullptr, status_listener_);
+      } catch (const ::mqtt::exception& e) {
+        report(link_report_level::error, "publish of the online status failed: " + describe(e));
+      }
+    }
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      if (epoch == epoch_ && connected_) {
+        session_ready_ = true;
+      }
+    }
+    changed_.notify_all();
+  }
+
+  void on_status_failure(const ::mqtt::token& tok) {
+    const handler_scope scope(*this);
+    if (!scope) {
+      return;
+    }
+    report(link_report_level::warning, "online status not acknowledged (return code " +
+                                           std::to_string(tok.get_return_code()) + "); sent again on reconnect");
+  }
+
+  void on_connection_lost(const std::string& cause) {
+    const handler_scope scope(*this);
+    if (!scope) {
+      return;
+    }
+    std::size_t returned = 0;
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      connected_ = false;
+      session_ready_ = false;
+      ++connection_losses_;
+      returned = box_.on_connection_lost();
+    }
+    changed_.notify_all();
+    report(link_report_level::warning, "connection to " + options_.broker.uri + " lost" +
+                                           (cause.empty() ? std::string{} : ": " + cause) + "; " +
+                                           std::to_string(returned) +
+                                           " unacknowledged message(s) will be sent again; reconnecting");
+  }
+
+  void on_delivery_success(const ::mqtt::token& tok) {
+    const handler_scope scope(*this);
+    if (!scope) {
+      return;
+    }
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      (void)box_.on_delivered(from_context(tok.get_user_context()));
+      send_paused_ = false;
+      if (box_.empty()) {
+        outbox_drop_reported_ = false;
+      }
+    }
+    changed_.notify_all();
+  }
+
+  void on_delivery_failure(const ::mqtt::token& tok) {
+    const handler_scope scope(*this);
+    if (!scope) {
+      return;
+    }
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      if (box_.on_send_failed(from_context(tok.get_user_context()))) {
+        ++send_failures_;
+      }
+    }
+    changed_.notify_all();
+  }
+
+  // ---- helpers ------------------------------------------------------------------------
+
+  void queue_locked(outbound_message message) {
+    if (message.retained) {
+      last_retained_[message.topic] = message;
+    }
+    (void)box_.push(std::move(message));
+  }
+
+  void report_outbox_drops() {
+    std::uint64_t dropped = 0;
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      dropped = box_.dropped_total();
+      if (dropped == outbox_drops_seen_ || outbox_drop_reported_) {
+        outbox_drops_seen_ = dropped;
+        return;
+      }
+      outbox_drops_seen_ = dropped;
+      outbox_drop_reported_ = true;
+    }
+    report(link_report_level::warning, "outbox full (" + std::to_string(options_.outbox_capacity) +
+                                           " messages): dropping the least important (events first), " +
+                                           std::to_string(dropped) + " dropped so far");
+  }
+
+  void report(link_report_level level, const std::string& text) const {
+    if (options_.report) {
+      options_.report(level, text);
+    }
+  }
+
+  const mqtt_link_options options_;
+  ::mqtt::connect_options connect_options_;
+
+  mutable std::mutex mutex_;
+  std::condition_variable changed_;        // outbox, connection or stop changed
+  std::condition_variable handlers_idle_;  // handlers_active_ fell to 0
+  outbox box_;
+  std::unordered_map<std::string, outbound_message> last_retained_;  // topic -> newest retained
+  link_phase phase_ = link_phase::created;
+  bool stop_requested_ = false;
+  bool connected_ = false;
+  bool session_ready_ = false;
+  bool send_paused_ = false;
+  bool send_failure_reported_ = false;
+  bool inbound_drop_reported_ = false;
+  bool outbox_drop_reported_ = false;
+  std::uint64_t outbox_drops_seen_ = 0;
+  bool gate_closed_ = false;
+  int handlers_active_ = 0;
+  std::uint64_t epoch_ = 0;
+  std::uint64_t connections_ = 0;
+  std::uint64_t connection_losses_ = 0;
+  std::uint64_t published_ = 0;
+  std::uint64_t send_failures_ = 0;
+  std::uint64_t rejected_ = 0;
+  std::string last_connect_error_;
+
+  inbound_queue inbound_;
+  forwarding_listener delivery_listener_;
+  forwarding_listener subscribe_listener_;
+  forwarding_listener status_listener_;
+  std::thread sender_;
+  // Last member: destroyed first, while everything its handlers touch still exists.
+  std::unique_ptr<::mqtt::async_client> client_;
+};
+
+// ---- validation -----------------------------------------------------------------------
+
+namespace {
+
+std::string validate(const mqtt_link_options& o) {
+  const broker_config& b = o.broker;
+  const bool tcp = starts_with(b.uri, "tcp://");
+  const bool ssl = starts_with(b.uri, "ssl://");
+  if (!tcp && !ssl) {
+    return "broker.uri \"" + b.uri + "\": must start with tcp:// or ssl://";
+  }
+  if (b.uri.size() <= std::string("tcp://").size()) {
+    return "broker.uri \"" + b.uri + "\": names no host";
+  }
+  if (b.client_id.empty()) {
+    return "broker.client_id is empty: a persistent session needs a stable client id";
+  }
+  if (!(b.keepalive_s >= 1.0 && b.keepalive_s <= 65535.0)) {
+    return "broker.keepalive_s " + std::to_string(b.keepalive_s) + ": must lie in 1 ... 65535 s";
+  }
+  if (b.tls && tcp) {
+    return "broker.tls is set but broker.uri " + b.uri + " is plain tcp://: use ssl://";
+  }
+  if (!b.password_file.empty() && b.username.empty()) {
+    return "broker.password_file is set but broker.username is empty (MQTT 3.1.1 sends no password without a user)";
+  }
+  if (b.tls) {
+    for (const auto& [field, path] : {std::pair<std::string, std::string>{"broker.tls.ca_file", b.tls->ca_file},
+                                      {"broker.tls.cert_file", b.tls->cert_file},
+                                      {"broker.tls.key_file", b.tls->key_file}}) {
+      if (!path.empty()) {
+        if (std::string why = check_readable(field, path); !why.empty()) {
+          return why;
+        }
+      }
+    }
+    if (!b.tls->key_file.empty() && b.tls->cert_file.empty()) {
+      return "broker.tls.key_file is set without broker.tls.cert_file";
+    }
+  }
+  if (!o.status_topic.empty()) {
+    if (std::string why = invalid_publish_topic(o.status_topic); !why.empty()) {
+      return "status topic \"" + o.status_topic + "\": " + why;
+    }
+  }
+  for (const std::string& filter : o.subscriptions) {
+    if (filter.empty()) {
+      return "an empty subscription topic filter";
+    }
+  }
+  if (o.max_in_flight < 1 || o.max_in_flight > 1000) {
+    return "max_in_flight " + std::to_string(o.max_in_flight) + ": must lie in 1 ... 1000";
+  }
+  if (o.reconnect_min.count() < 1 || o.reconnect_max < o.reconnect_min) {
+    return "reconnect back-off: need 1 s <= reconnect_min <= reconnect_max";
+  }
+  if (o.connect_timeout.count() < 1) {
+    return "connect_timeout must be at least 1 s";
+  }
+  return {};
+}
+
+}  // namespace
+
+// ---- mqtt_link ------------------------------------------------------------------------
+
+result<mqtt_link> mqtt_link::create(mqtt_link_options options) {
+  if (std::string why = validate(options); !why.empty()) {
+    return make_error(error_code::invalid_argument, why);
+  }
+  std::string password;
+  if (!options.broker.password_file.empty()) {
+    auto secret = read_secret_file(options.broker.password_file);
+    if (!secret.ok()) {
+      return make_error(error_code::invalid_argument, "broker.password_file " + secret.err().message);
+    }
+    password = std::move(secret).value();
+  }
+  auto state = std::make_unique<impl>(std::move(options));
+  if (std::string why = state->build(password); !why.empty()) {
+    return make_error(error_code::invalid_argument, why);
+  }
+  return mqtt_link(std::move(state));
+}
+
+mqtt_link::mqtt_link(std::unique_ptr<impl> state) : impl_(std::move(state)) {}
+mqtt_link::mqtt_link(mqtt_link&&) noexcept = default;
+mqtt_link& mqtt_link::operator=(mqtt_link&&) noexcept = default;
+mqtt_link::~mqtt_link() = default;
+
+void mqtt_link::start() { impl_->start(); }
+bool mqtt_link::next_message(inbound_message& out, std::chrono::milliseconds timeout) {
+  return impl_->next_message(out, timeout);
+}
+void mqtt_link::publish(outbound_message message) { impl_->publish(std::move(message)); }
+bool mqtt_link::connected() const { return impl_->connected(); }
+bool mqtt_link::ready() const { return impl_->ready(); }
+std::string mqtt_link::last_connect_error() const { return impl_->last_connect_error(); }
+mqtt_link_stats mqtt_link::stats() const { return impl_->stats(); }
+void mqtt_link::shutdown(const std::string& final_status_payload, std::chrono::milliseconds timeout) {
+  impl_->shutdown(final_status_payload, timeout);
+}
+
+}  // namespace dewmargin

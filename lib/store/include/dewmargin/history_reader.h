@@ -1,0 +1,69 @@
+#pragma once
+// Read-only access to a history database (SQLITE_OPEN_READONLY): works while the service
+// writes, thanks to WAL. Used by `dewmargin history`, the report and the service's restore.
+#include <cstddef>
+#include <cstdint>
+#include <filesystem>
+#include <functional>
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "dewmargin/engine_output.h"
+#include "dewmargin/store_error.h"
+#include "dewmargin/timestamp.h"
+
+namespace dewmargin {
+
+struct event_filter {
+  std::optional<std::string> subject_id;  // a zone, loop or dehumidifier id
+  std::optional<timestamp> since;         // inclusive
+  std::optional<timestamp> until;         // exclusive
+  std::optional<std::string> kind;
+};
+
+struct stored_event {
+  std::int64_t id = 0;  // insertion order; breaks ties between equal timestamps
+  event_record record;
+};
+
+struct sample_filter {
+  std::optional<std::string> zone;
+  std::optional<timestamp> since;  // inclusive, on minute_start
+  std::optional<timestamp> until;  // exclusive
+};
+
+class history_reader {
+ public:
+  // Fails when the file is missing, unreadable, not SQLite, foreign, or of another schema version.
+  [[nodiscard]] static store_result<history_reader> open(const std::filesystem::path& file);
+
+  history_reader(history_reader&&) noexcept;
+  history_reader& operator=(history_reader&&) noexcept;
+  history_reader(const history_reader&) = delete;
+  history_reader& operator=(const history_reader&) = delete;
+  ~history_reader();
+
+  // Events ordered by ts, then id; `visit` is called once per row as it is read. Returns the count.
+  [[nodiscard]] store_result<std::size_t> for_each_event(const event_filter& filter,
+                                                         const std::function<void(const stored_event&)>& visit) const;
+  [[nodiscard]] store_result<std::vector<stored_event>> events(const event_filter& filter) const;
+
+  // Samples ordered by zone, then minute.
+  [[nodiscard]] store_result<std::size_t> for_each_sample(const sample_filter& filter,
+                                                          const std::function<void(const zone_sample&)>& visit) const;
+  [[nodiscard]] store_result<std::vector<zone_sample>> samples(const sample_filter& filter) const;
+
+  // Latest snapshot per zone and loop (ordered by their ids), read in one transaction.
+  [[nodiscard]] store_result<restored_state> load_restored_state() const;
+
+  [[nodiscard]] const std::filesystem::path& path() const;
+
+ private:
+  class impl;
+  explicit history_reader(std::unique_ptr<impl> p);
+  std::unique_ptr<impl> impl_;
+};
+
+}  // namespace dewmargin

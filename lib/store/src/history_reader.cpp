@@ -1,0 +1,229 @@
+#include "dewmargin/history_reader.h"
+
+#include <utility>
+#include <variant>
+#include <vector>
+
+#include "migrations.h"
+#include "sqlite_handle.h"
+
+namespace dewmargin {
+
+using store_detail::column_text;
+using store_detail::connection;
+using store_detail::describe;
+using store_detail::statement;
+
+namespace {
+
+std::optional<subject_type> subject_type_from(const std::string& text) {
+  for (const auto s : {subject_type::site, subject_type::zone, subject_type::loop, subject_type::dehumidifier}) {
+    if (text == subject_type_name(s)) return s;
+  }
+  return std::nullopt;
+}
+
+std::optional<double> column_optional_double(sqlite3_stmt* stmt, int column) {
+  if (sqlite3_column_type(stmt, column) == SQLITE_NULL) return std::nullopt;
+  return sqlite3_column_double(stmt, column);
+}
+
+// "WHERE a = ?1 AND b >= ?2" from the conditions that are set, with the values to bind.
+class where_clause {
+ public:
+  // `condition` ends with the operator: "subject_id =", "ts_ms <".
+  void add(const char* condition, std::variant<std::string, std::int64_t> value) {
+    sql_ += params_.empty() ? " WHERE " : " AND ";
+    sql_ += condition;
+    sql_ += " ?" + std::to_string(params_.size() + 1);
+    params_.push_back(std::move(value));
+  }
+  [[nodiscard]] const std::string& sql() const { return sql_; }
+  void bind(const statement& stmt) const {
+    for (std::size_t n = 0; n < params_.size(); ++n) {
+      const int index = static_cast<int>(n) + 1;
+      if (const auto* text = std::get_if<std::string>(&params_[n])) {
+        stmt.bind_text(index, *text);
+      } else {
+        stmt.bind_int64(index, std::get<std::int64_t>(params_[n]));
+      }
+    }
+  }
+
+ private:
+  std::string sql_;
+  std::vector<std::variant<std::string, std::int64_t>> params_;
+};
+
+}  // namespace
+
+class history_reader::impl {
+ public:
+  impl(std::filesystem::path file, connection db) : file_(std::move(file)), db_(std::move(db)) {}
+
+  store_error failure(const std::string& what, int rc) const {
+    const auto kind = (rc & 0xff) == SQLITE_CORRUPT ? store_error_kind::corrupt : store_error_kind::sqlite_failure;
+    return store_error{kind, file_.string() + ": " + what + ": " + describe(db_.get(), rc)};
+  }
+
+  store_result<std::size_t> for_each_event(const event_filter& f,
+                                           const std::function<void(const stored_event&)>& visit) const {
+    where_clause where;
+    if (f.subject_id) where.add("subject_id =", *f.subject_id);
+    if (f.kind) where.add("kind =", *f.kind);
+    if (f.since) where.add("ts_ms >=", to_unix_ms(*f.since));
+    if (f.until) where.add("ts_ms <", to_unix_ms(*f.until));
+    const std::string sql =
+        "SELECT id, ts_ms, subject_type, subject_id, kind, json FROM events" + where.sql() + " ORDER BY ts_ms, id";
+    statement stmt;
+    int rc = statement::prepare(db_.get(), sql, stmt);
+    if (rc != SQLITE_OK) return failure("querying events", rc);
+    where.bind(stmt);
+    std::size_t count = 0;
+    stored_event row;
+    while ((rc = sqlite3_step(stmt.get())) == SQLITE_ROW) {
+      sqlite3_stmt* s = stmt.get();
+      row.id = sqlite3_column_int64(s, 0);
+      row.record.ts = from_unix_ms(sqlite3_column_int64(s, 1));
+      const std::string type_text = column_text(s, 2);
+      const auto type = subject_type_from(type_text);
+      if (!type) {
+        return store_error{store_error_kind::corrupt, file_.string() + ": event id " + std::to_string(row.id) +
+                                                          ": unknown subject_type '" + type_text + "'"};
+      }
+      row.record.subject = *type;
+      row.record.subject_id = column_text(s, 3);
+      row.record.kind = column_text(s, 4);
+      row.record.json = column_text(s, 5);
+      visit(row);
+      ++count;
+    }
+    if (rc != SQLITE_DONE) return failure("reading events", rc);
+    return count;
+  }
+
+  store_result<std::size_t> for_each_sample(const sample_filter& f,
+                                            const std::function<void(const zone_sample&)>& visit) const {
+    where_clause where;
+    if (f.zone) where.add("zone =", *f.zone);
+    if (f.since) where.add("minute_ms >=", to_unix_ms(*f.since));
+    if (f.until) where.add("minute_ms <", to_unix_ms(*f.until));
+    const std::string sql =
+        "SELECT zone, minute_ms, min_margin_k, max_dew_point_c, worst_band, air_temp_c, rh_pct, surface_min_c, "
+        "supply_c FROM zone_samples" +
+        where.sql() + " ORDER BY zone, minute_ms";
+    statement stmt;
+    int rc = statement::prepare(db_.get(), sql, stmt);
+    if (rc != SQLITE_OK) return failure("querying samples", rc);
+    where.bind(stmt);
+    std::size_t count = 0;
+    zone_sample row;
+    while ((rc = sqlite3_step(stmt.get())) == SQLITE_ROW) {
+      sqlite3_stmt* s = stmt.get();
+      row.zone = column_text(s, 0);
+      row.minute_start = from_unix_ms(sqlite3_column_int64(s, 1));
+      row.min_margin_k = column_optional_double(s, 2);
+      row.max_dew_point_c = column_optional_double(s, 3);
+      row.worst_band = column_text(s, 4);
+      row.air_temp_c = column_optional_double(s, 5);
+      row.rh_pct = column_optional_double(s, 6);
+      row.surface_min_c = column_optional_double(s, 7);
+      row.supply_c = column_optional_double(s, 8);
+      visit(row);
+      ++count;
+    }
+    if (rc != SQLITE_DONE) return failure("reading samples", rc);
+    return count;
+  }
+
+  store_result<restored_state> load_restored_state() const {
+    sqlite3* db = db_.get();
+    // One read transaction: zones and loops come from the same committed state.
+    int rc = store_detail::exec(db, "BEGIN");
+    if (rc != SQLITE_OK) return failure("starting a read transaction", rc);
+    struct end_read {
+      sqlite3* db;
+      ~end_read() { store_detail::exec(db, "COMMIT"); }
+    } const end{db};
+    restored_state state;
+    statement zones;
+    rc = statement::prepare(db,
+                            "SELECT zone, band, alarm_active, acknowledged, shelved_until_ms, valve, ts_ms FROM "
+                            "zone_state ORDER BY zone",
+                            zones);
+    if (rc != SQLITE_OK) return failure("querying zone_state", rc);
+    while ((rc = sqlite3_step(zones.get())) == SQLITE_ROW) {
+      sqlite3_stmt* s = zones.get();
+      zone_snapshot z;
+      z.zone = column_text(s, 0);
+      z.band = column_text(s, 1);
+      z.alarm_active = sqlite3_column_int64(s, 2) != 0;
+      z.acknowledged = sqlite3_column_int64(s, 3) != 0;
+      if (sqlite3_column_type(s, 4) != SQLITE_NULL) z.shelved_until = from_unix_ms(sqlite3_column_int64(s, 4));
+      z.valve = column_text(s, 5);
+      z.ts = from_unix_ms(sqlite3_column_int64(s, 6));
+      state.zones.push_back(std::move(z));
+    }
+    if (rc != SQLITE_DONE) return failure("reading zone_state", rc);
+    statement loops;
+    rc = statement::prepare(db, "SELECT loop, setpoint_c, ts_ms FROM loop_state ORDER BY loop", loops);
+    if (rc != SQLITE_OK) return failure("querying loop_state", rc);
+    while ((rc = sqlite3_step(loops.get())) == SQLITE_ROW) {
+      sqlite3_stmt* s = loops.get();
+      loop_snapshot l;
+      l.loop = column_text(s, 0);
+      l.setpoint_c = sqlite3_column_double(s, 1);
+      l.ts = from_unix_ms(sqlite3_column_int64(s, 2));
+      state.loops.push_back(std::move(l));
+    }
+    if (rc != SQLITE_DONE) return failure("reading loop_state", rc);
+    return state;
+  }
+
+  const std::filesystem::path& path() const { return file_; }
+
+ private:
+  std::filesystem::path file_;
+  connection db_;
+};
+
+store_result<history_reader> history_reader::open(const std::filesystem::path& file) {
+  auto db = store_detail::open_history_db(file, store_detail::open_mode::read_only, store_detail::open_settings{});
+  if (!db.ok()) return db.err();
+  return history_reader(std::make_unique<impl>(file, std::move(db).value()));
+}
+
+history_reader::history_reader(std::unique_ptr<impl> p) : impl_(std::move(p)) {}
+history_reader::history_reader(history_reader&&) noexcept = default;
+history_reader& history_reader::operator=(history_reader&&) noexcept = default;
+history_reader::~history_reader() = default;
+
+store_result<std::size_t> history_reader::for_each_event(const event_filter& filter,
+                                                         const std::function<void(const stored_event&)>& visit) const {
+  return impl_->for_each_event(filter, visit);
+}
+
+store_result<std::vector<stored_event>> history_reader::events(const event_filter& filter) const {
+  std::vector<stored_event> rows;
+  auto r = impl_->for_each_event(filter, [&](const stored_event& e) { rows.push_back(e); });
+  if (!r.ok()) return r.err();
+  return rows;
+}
+
+store_result<std::size_t> history_reader::for_each_sample(const sample_filter& filter,
+                                                          const std::function<void(const zone_sample&)>& visit) const {
+  return impl_->for_each_sample(filter, visit);
+}
+
+store_result<std::vector<zone_sample>> history_reader::samples(const sample_filter& filter) const {
+  std::vector<zone_sample> rows;
+  auto r = impl_->for_each_sample(filter, [&](const zone_sample& s) { rows.push_back(s); });
+  if (!r.ok()) return r.err();
+  return rows;
+}
+
+store_result<restored_state> history_reader::load_restored_state() const { return impl_->load_restored_state(); }
+
+const std::filesystem::path& history_reader::path() const { return impl_->path(); }
+
+}  // namespace dewmargin

@@ -1,0 +1,225 @@
+#include "migrations.h"
+
+#include <cstdio>
+#include <optional>
+#include <string>
+#include <system_error>
+
+#include "dewmargin/store_schema.h"
+
+namespace dewmargin::store_detail {
+namespace {
+
+// Version 1. The same DDL is in tests/data/history/fixture.sql (a test keeps them equal).
+constexpr std::string_view k_schema_v1 = R"sql(
+CREATE TABLE events (
+  id INTEGER PRIMARY KEY,
+  ts_ms INTEGER NOT NULL,
+  subject_type TEXT NOT NULL,
+  subject_id TEXT NOT NULL,
+  kind TEXT NOT NULL,
+  json TEXT NOT NULL
+);
+CREATE INDEX events_by_subject_ts ON events (subject_id, ts_ms);
+CREATE INDEX events_by_ts ON events (ts_ms);
+CREATE INDEX events_by_kind_ts ON events (kind, ts_ms);
+CREATE TABLE zone_samples (
+  zone TEXT NOT NULL,
+  minute_ms INTEGER NOT NULL,
+  min_margin_k REAL,
+  max_dew_point_c REAL,
+  worst_band TEXT NOT NULL,
+  air_temp_c REAL,
+  rh_pct REAL,
+  surface_min_c REAL,
+  supply_c REAL,
+  PRIMARY KEY (zone, minute_ms)
+);
+CREATE INDEX zone_samples_by_minute ON zone_samples (minute_ms);
+CREATE TABLE zone_state (
+  zone TEXT PRIMARY KEY,
+  band TEXT NOT NULL,
+  alarm_active INTEGER NOT NULL,
+  acknowledged INTEGER NOT NULL,
+  shelved_until_ms INTEGER,
+  valve TEXT NOT NULL,
+  ts_ms INTEGER NOT NULL
+);
+CREATE TABLE loop_state (
+  loop TEXT PRIMARY KEY,
+  setpoint_c REAL NOT NULL,
+  ts_ms INTEGER NOT NULL
+);
+)sql";
+
+std::string hex_id(std::int64_t id) {
+  char buf[24];
+  std::snprintf(buf, sizeof buf, "0x%08llx", static_cast<unsigned long long>(id) & 0xffffffffULL);
+  return buf;
+}
+
+store_error make(const std::filesystem::path& file, store_error_kind kind, const std::string& what) {
+  return store_error{kind, file.string() + ": " + what};
+}
+
+// The first read of a file is where SQLite finds out what it is.
+store_error first_read_failure(const std::filesystem::path& file, sqlite3* db, int rc) {
+  switch (rc & 0xff) {
+    case SQLITE_NOTADB:
+      return make(file, store_error_kind::not_a_database, "not a dewmargin history database (not an SQLite file)");
+    case SQLITE_CORRUPT:
+      return make(file, store_error_kind::corrupt, "database is corrupt: " + describe(db, rc));
+    case SQLITE_CANTOPEN:
+    case SQLITE_PERM:
+    case SQLITE_AUTH:
+      return make(file, store_error_kind::cannot_open, "cannot read: " + describe(db, rc));
+    default:
+      return make(file, store_error_kind::sqlite_failure, "cannot read the file header: " + describe(db, rc));
+  }
+}
+
+int set_int_pragma(sqlite3* db, const char* name, std::int64_t value) {
+  const std::string sql = std::string("PRAGMA ") + name + " = " + std::to_string(value);
+  return exec(db, sql.c_str());
+}
+
+bool migrations_well_formed(const std::vector<migration>& migrations) {
+  if (migrations.empty()) return false;
+  for (std::size_t i = 0; i < migrations.size(); ++i) {
+    if (migrations[i].version != static_cast<int>(i) + 1) return false;
+  }
+  return true;
+}
+
+// One step in one transaction; the version is re-read under the write lock so that a second
+// process that raced us to a new file skips the step instead of failing on CREATE TABLE.
+std::optional<store_error> apply_step(const std::filesystem::path& file, sqlite3* db, const migration& step) {
+  const auto failed = [&](const char* what, int rc) {
+    const std::string text = describe(db, rc);
+    if (sqlite3_get_autocommit(db) == 0) exec(db, "ROLLBACK");
+    return make(file, (rc & 0xff) == SQLITE_CORRUPT ? store_error_kind::corrupt : store_error_kind::sqlite_failure,
+                "migration to schema version " + std::to_string(step.version) + " failed (" + what + "): " + text);
+  };
+  int rc = exec(db, "BEGIN IMMEDIATE");
+  if (rc != SQLITE_OK) return failed("begin", rc);
+  std::int64_t version = 0;
+  rc = query_int64(db, "PRAGMA user_version", version);
+  if (rc != SQLITE_OK) return failed("reading user_version", rc);
+  if (version >= step.version) {
+    rc = exec(db, "COMMIT");
+    if (rc != SQLITE_OK) return failed("commit", rc);
+    return std::nullopt;
+  }
+  rc = set_int_pragma(db, "application_id", k_store_application_id);
+  if (rc != SQLITE_OK) return failed("setting application_id", rc);
+  const std::string sql(step.sql);
+  rc = exec(db, sql.c_str());
+  if (rc != SQLITE_OK) return failed("schema statements", rc);
+  rc = set_int_pragma(db, "user_version", step.version);
+  if (rc != SQLITE_OK) return failed("setting user_version", rc);
+  rc = exec(db, "COMMIT");
+  if (rc != SQLITE_OK) return failed("commit", rc);
+  return std::nullopt;
+}
+
+}  // namespace
+
+const std::vector<migration>& schema_migrations() {
+  static const std::vector<migration> k_migrations{{1, k_schema_v1}};
+  return k_migrations;
+}
+
+store_result<connection> open_history_db(const std::filesystem::path& file, open_mode mode,
+                                         const open_settings& settings, const std::vector<migration>& migrations) {
+  if (!migrations_well_formed(migrations)) {
+    return make(file, store_error_kind::invalid_options, "internal: migrations must be numbered 1..N in order");
+  }
+  const int target_version = migrations.back().version;
+  const bool read_only = mode == open_mode::read_only;
+
+  std::error_code ec;
+  const auto status = std::filesystem::status(file, ec);
+  if (read_only && !std::filesystem::exists(status)) return make(file, store_error_kind::missing_file, "no such file");
+  if (std::filesystem::is_directory(status)) {
+    return make(file, store_error_kind::cannot_open, "is a directory, not a database file");
+  }
+
+  sqlite3* raw = nullptr;
+  // NOMUTEX: each connection is used by one thread at a time (the writer's thread, or the
+  // reader's caller), so SQLite's per-call locking is pure cost.
+  const int flags =
+      (read_only ? SQLITE_OPEN_READONLY : SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE) | SQLITE_OPEN_NOMUTEX;
+  int rc = sqlite3_open_v2(file.string().c_str(), &raw, flags, nullptr);
+  connection db(raw);  // SQLite hands out a handle even on failure; it must be closed
+  if (rc != SQLITE_OK) {
+    return make(file, store_error_kind::cannot_open,
+                std::string(read_only ? "cannot open: "
+                                      : "cannot open or create (does the directory exist and "
+                                        "is it writable?): ") +
+                    describe(raw, rc));
+  }
+  sqlite3_extended_result_codes(raw, 1);
+  sqlite3_busy_timeout(raw, static_cast<int>(settings.busy_timeout.count()));
+
+  std::int64_t application_id = 0;
+  std::int64_t version = 0;
+  std::int64_t objects = 0;
+  rc = query_int64(raw, "PRAGMA application_id", application_id);
+  if (rc != SQLITE_OK) return first_read_failure(file, raw, rc);
+  rc = query_int64(raw, "PRAGMA user_version", version);
+  if (rc != SQLITE_OK) return first_read_failure(file, raw, rc);
+  rc = query_int64(raw, "SELECT count(*) FROM sqlite_schema", objects);
+  if (rc != SQLITE_OK) return first_read_failure(file, raw, rc);
+
+  const bool fresh = application_id == 0 && version == 0 && objects == 0;
+  if (!fresh && application_id != k_store_application_id) {
+    std::string why = "not a dewmargin history database (application_id " + hex_id(application_id) + ", expected " +
+                      hex_id(k_store_application_id);
+    if (application_id == 0) why += "; it holds " + std::to_string(objects) + " schema objects of another program";
+    return make(file, store_error_kind::foreign_database, why + ")");
+  }
+  if (fresh && read_only) {
+    return make(file, store_error_kind::foreign_database,
+                "not a dewmargin history database (an empty SQLite file, application_id 0x00000000)");
+  }
+  if (version > target_version) {
+    return make(file, store_error_kind::schema_too_new,
+                "schema version " + std::to_string(version) + " is newer than this program knows (" +
+                    std::to_string(target_version) + "); use the dewmargin release that wrote it, or a newer one");
+  }
+  if (read_only) {
+    if (version < target_version) {
+      return make(file, store_error_kind::schema_too_old,
+                  "schema version " + std::to_string(version) + " is older than this program's (" +
+                      std::to_string(target_version) + "); the service migrates it on its next start");
+    }
+    return db;
+  }
+
+  if (fresh) {
+    // Only possible before the first table exists; afterwards it would take a full VACUUM.
+    rc = exec(raw, "PRAGMA auto_vacuum = INCREMENTAL");
+    if (rc != SQLITE_OK)
+      return make(file, store_error_kind::sqlite_failure, "setting auto_vacuum: " + describe(raw, rc));
+  }
+  std::string journal_mode;
+  rc = query_text(raw, "PRAGMA journal_mode = WAL", journal_mode);
+  if (rc != SQLITE_OK) {
+    return make(file, store_error_kind::sqlite_failure, "switching to WAL journal mode: " + describe(raw, rc));
+  }
+  if (journal_mode != "wal") {
+    return make(file, store_error_kind::sqlite_failure,
+                "the file system does not support WAL journal mode (still '" + journal_mode + "')");
+  }
+  rc = exec(raw, "PRAGMA synchronous = NORMAL");
+  if (rc == SQLITE_OK) rc = set_int_pragma(raw, "journal_size_limit", settings.journal_size_limit_bytes);
+  if (rc != SQLITE_OK) return make(file, store_error_kind::sqlite_failure, "setting pragmas: " + describe(raw, rc));
+
+  for (const auto& step : migrations) {
+    if (step.version <= version) continue;
+    if (auto failure = apply_step(file, raw, step)) return *failure;
+  }
+  return db;
+}
+
+}  // namespace dewmargin::store_detail

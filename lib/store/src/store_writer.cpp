@@ -1,0 +1,581 @@
+#include "dewmargin/store_writer.h"
+
+#include <algorithm>
+#include <cmath>
+#include <condition_variable>
+#include <cstdio>
+#include <exception>
+#include <mutex>
+#include <optional>
+#include <thread>
+#include <utility>
+#include <vector>
+
+#include "dewmargin/history_reader.h"
+#include "migrations.h"
+#include "pending_rows.h"
+#include "sqlite_handle.h"
+
+namespace dewmargin {
+
+using store_detail::connection;
+using store_detail::describe;
+using store_detail::exec;
+using store_detail::pending_rows;
+using store_detail::statement;
+using steady = std::chrono::steady_clock;
+
+namespace {
+
+constexpr double k_ms_per_day = 86'400'000.0;
+
+constexpr const char* k_insert_event_sql =
+    "INSERT INTO events (ts_ms, subject_type, subject_id, kind, json) VALUES (?1, ?2, ?3, ?4, ?5)";
+// A later sample of the same minute (a restart within the minute) replaces the earlier one.
+constexpr const char* k_upsert_sample_sql =
+    "INSERT INTO zone_samples (zone, minute_ms, min_margin_k, max_dew_point_c, worst_band, air_temp_c, rh_pct, "
+    "surface_min_c, supply_c) VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9) "
+    "ON CONFLICT (zone, minute_ms) DO UPDATE SET min_margin_k = excluded.min_margin_k, "
+    "max_dew_point_c = excluded.max_dew_point_c, worst_band = excluded.worst_band, air_temp_c = excluded.air_temp_c, "
+    "rh_pct = excluded.rh_pct, surface_min_c = excluded.surface_min_c, supply_c = excluded.supply_c";
+constexpr const char* k_upsert_zone_sql =
+    "INSERT INTO zone_state (zone, band, alarm_active, acknowledged, shelved_until_ms, valve, ts_ms) "
+    "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7) ON CONFLICT (zone) DO UPDATE SET band = excluded.band, "
+    "alarm_active = excluded.alarm_active, acknowledged = excluded.acknowledged, "
+    "shelved_until_ms = excluded.shelved_until_ms, valve = excluded.valve, ts_ms = excluded.ts_ms";
+constexpr const char* k_upsert_loop_sql =
+    "INSERT INTO loop_state (loop, setpoint_c, ts_ms) VALUES (?1, ?2, ?3) "
+    "ON CONFLICT (loop) DO UPDATE SET setpoint_c = excluded.setpoint_c, ts_ms = excluded.ts_ms";
+constexpr const char* k_delete_old_events_sql =
+    "DELETE FROM events WHERE id IN (SELECT id FROM events WHERE ts_ms < ?1 ORDER BY ts_ms LIMIT ?2)";
+constexpr const char* k_delete_old_samples_sql =
+    "DELETE FROM zone_samples WHERE rowid IN "
+    "(SELECT rowid FROM zone_samples WHERE minute_ms < ?1 ORDER BY minute_ms LIMIT ?2)";
+
+void bind_optional(const statement& stmt, int index, const std::optional<double>& value) {
+  if (value) {
+    stmt.bind_double(index, *value);
+  } else {
+    stmt.bind_null(index);
+  }
+}
+
+std::string seconds_text(std::chrono::milliseconds d) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.2f s", static_cast<double>(d.count()) / 1000.0);
+  return buf;
+}
+
+std::optional<std::int64_t> cutoff_ms(timestamp now, double keep_days) {
+  if (!(keep_days > 0.0)) return std::nullopt;
+  return to_unix_ms(now) - std::llround(keep_days * k_ms_per_day);
+}
+
+// What a failed write step was doing, for the report.
+struct write_failure {
+  std::string step;
+  std::string sqlite_text;
+};
+
+}  // namespace
+
+store_writer_options store_writer_options_from(const storage_config& storage) {
+  store_writer_options o;
+  o.path = storage.path;
+  o.keep_events_days = storage.keep_events_days;
+  o.keep_samples_days = storage.keep_samples_days;
+  return o;
+}
+
+class store_writer::impl {
+ public:
+  impl(store_writer_options options, connection db) : options_(std::move(options)), db_(std::move(db)) {
+    backoff_ = options_.retry_backoff_initial;
+  }
+
+  ~impl() { stop(std::chrono::seconds{5}); }
+  impl(const impl&) = delete;
+  impl& operator=(const impl&) = delete;
+
+  // Prepared once; re-prepared by SQLite itself after a schema change.
+  std::optional<store_error> prepare_statements() {
+    const std::pair<const char*, statement*> all[] = {
+        {k_insert_event_sql, &insert_event_},
+        {k_upsert_sample_sql, &upsert_sample_},
+        {k_upsert_zone_sql, &upsert_zone_},
+        {k_upsert_loop_sql, &upsert_loop_},
+        {k_delete_old_events_sql, &delete_old_events_},
+        {k_delete_old_samples_sql, &delete_old_samples_},
+    };
+    for (const auto& [sql, stmt] : all) {
+      const int rc = statement::prepare(db_.get(), sql, *stmt);
+      if (rc != SQLITE_OK) {
+        return store_error{store_error_kind::sqlite_failure,
+                           options_.path.string() + ": preparing statements: " + describe(db_.get(), rc)};
+      }
+    }
+    return std::nullopt;
+  }
+
+  void start() {
+    thread_ = std::thread([this] { run(); });
+  }
+
+  // The owner's reporter must not take the writer down: an exception from it has nowhere
+  // else to go, so it is swallowed here (the counters still show every error).
+  void report(const std::string& line) const noexcept {
+    try {
+      options_.report_error(line);
+    } catch (...) {  // NOLINT(bugprone-empty-catch): see above
+    }
+  }
+
+  void enqueue(const engine_output& output) {
+    const std::size_t rows =
+        output.events.size() + output.samples.size() + output.zone_snapshots.size() + output.loop_snapshots.size();
+    if (rows == 0) return;
+    bool report_late = false;
+    {
+      std::lock_guard<std::mutex> lock(mu_);
+      counters_.rows_enqueued += rows;
+      ++enqueued_seq_;  // also when dropped below: a later flush() must not report them written
+      if (stopping_ || thread_done_) {
+        counters_.dropped_rows += rows;
+        report_late = !reported_late_;
+        reported_late_ = true;
+      } else {
+        const bool was_empty = pending_.empty();
+        const bool was_below_early = pending_.size() < options_.commit_early_rows;
+        pending_.add(output);
+        counters_.dropped_rows += pending_.enforce_limit(options_.max_pending_rows);
+        if (was_empty) oldest_pending_since_ = steady::now();
+        // Wake the writer only when its schedule changes: the first row (a commit is now due in
+        // commit_interval) or crossing the early threshold.
+        if (was_empty || (was_below_early && pending_.size() >= options_.commit_early_rows)) wake_.notify_one();
+      }
+    }
+    if (report_late) {
+      report(options_.path.string() + ": rows enqueued after the writer stopped are dropped");
+    }
+  }
+
+  bool flush(std::chrono::milliseconds timeout) {
+    std::unique_lock<std::mutex> lock(mu_);
+    const std::uint64_t target = enqueued_seq_;
+    if (committed_seq_ >= target) return true;
+    attempt_now_ = true;
+    wake_.notify_one();
+    return progress_.wait_for(lock, timeout, [&] { return committed_seq_ >= target || thread_done_; }) &&
+           committed_seq_ >= target;
+  }
+
+  bool run_maintenance(std::chrono::milliseconds timeout) {
+    std::unique_lock<std::mutex> lock(mu_);
+    if (thread_done_) return false;
+    const std::uint64_t target = counters_.maintenance_passes + 1 + (maintenance_running_ ? 1 : 0);
+    maintenance_requested_ = true;
+    wake_.notify_one();
+    return progress_.wait_for(lock, timeout, [&] { return counters_.maintenance_passes >= target || thread_done_; }) &&
+           counters_.maintenance_passes >= target;
+  }
+
+  void stop(std::chrono::milliseconds timeout) {
+    {
+      std::lock_guard<std::mutex> lock(mu_);
+      if (!stopping_) {
+        stopping_ = true;
+        stop_deadline_ = steady::now() + timeout;
+      }
+      wake_.notify_one();
+    }
+    if (thread_.joinable()) thread_.join();
+    db_.close();
+  }
+
+  store_writer_counters counters() const {
+    std::lock_guard<std::mutex> lock(mu_);
+    store_writer_counters c = counters_;
+    c.pending_rows = pending_.size() + in_flight_rows_;
+    c.in_flight_rows = in_flight_rows_;
+    return c;
+  }
+
+  const std::filesystem::path& path() const { return options_.path; }
+
+ private:
+  void run() {
+    try {
+      run_loop();
+    } catch (const std::exception& e) {
+      // Nothing may escape the thread; a failure here (e.g. out of memory) ends the writer.
+      report(options_.path.string() + ": store writer stopped by an exception: " + e.what());
+    }
+    std::lock_guard<std::mutex> lock(mu_);
+    thread_done_ = true;
+    progress_.notify_all();
+  }
+
+  void run_loop() {
+    std::unique_lock<std::mutex> lock(mu_);
+    maintain(lock);  // at start: a service that was off for a while catches up on retention
+    next_maintenance_ = steady::now() + options_.maintenance_interval;
+    for (;;) {
+      const auto now = steady::now();
+      const bool have_rows = !pending_.empty();
+      // When a commit is due: after a failure not before the back-off; otherwise once the
+      // oldest row has waited commit_interval, or at once with many rows or while stopping.
+      steady::time_point commit_due = retry_at_;
+      if (!retrying_ && have_rows && !stopping_ && pending_.size() < options_.commit_early_rows &&
+          oldest_pending_since_) {
+        commit_due = *oldest_pending_since_ + options_.commit_interval;
+      }
+      if (have_rows && (attempt_now_ || now >= commit_due)) {
+        attempt_now_ = false;
+        commit(lock);
+        continue;
+      }
+      if (!have_rows) {
+        attempt_now_ = false;
+        // Everything enqueued so far is written or was dropped: flush() waiters may go.
+        if (committed_seq_ != enqueued_seq_) {
+          committed_seq_ = enqueued_seq_;
+          progress_.notify_all();
+        }
+      }
+      if (stopping_ && (!have_rows || now >= stop_deadline_)) break;
+      if (maintenance_requested_ || (!stopping_ && now >= next_maintenance_)) {
+        maintain(lock);
+        next_maintenance_ = steady::now() + options_.maintenance_interval;
+        continue;
+      }
+      steady::time_point wake_at = next_maintenance_;
+      if (have_rows) wake_at = std::min(wake_at, commit_due);
+      if (stopping_) wake_at = std::min(wake_at, stop_deadline_);
+      wake_.wait_until(lock, wake_at);
+    }
+    const std::size_t left = pending_.size();
+    if (left > 0) {
+      counters_.dropped_rows += left;
+      pending_ = pending_rows{};
+      lock.unlock();
+      report(options_.path.string() + ": stopped with " + std::to_string(left) + " rows not written (they are lost)");
+      lock.lock();
+    }
+  }
+
+  // Takes everything pending, writes it in one transaction without holding the lock, and on
+  // failure puts it back in front of what arrived meanwhile.
+  void commit(std::unique_lock<std::mutex>& lock) {
+    pending_rows batch;
+    std::swap(batch, pending_);
+    oldest_pending_since_.reset();
+    const std::uint64_t batch_seq = enqueued_seq_;
+    in_flight_rows_ = batch.size();
+    lock.unlock();
+
+    const auto started = steady::now();
+    const std::optional<write_failure> failure = write(batch);
+    const auto took_us = static_cast<std::uint64_t>(
+        std::chrono::duration_cast<std::chrono::microseconds>(steady::now() - started).count());
+    const std::size_t rows = batch.size();
+    if (!failure) batch = pending_rows{};  // free the rows before taking the lock: enqueue() must not wait for it
+
+    lock.lock();
+    in_flight_rows_ = 0;
+    if (!failure) {
+      committed_seq_ = batch_seq;
+      counters_.rows_written += rows;
+      ++counters_.commits;
+      counters_.last_commit_us = took_us;
+      counters_.max_commit_us = std::max(counters_.max_commit_us, took_us);
+      counters_.total_commit_us += took_us;
+      backoff_ = options_.retry_backoff_initial;
+      retrying_ = false;
+      retry_at_ = steady::time_point{};
+      progress_.notify_all();
+      return;
+    }
+    ++counters_.errors;
+    const std::string sizes = std::to_string(rows) + " rows (" + std::to_string(batch.event_count()) + " events, " +
+                              std::to_string(batch.samples().size()) + " samples, " +
+                              std::to_string(batch.zone_snapshots().size() + batch.loop_snapshots().size()) +
+                              " snapshots)";
+    pending_.prepend(std::move(batch));
+    const std::size_t dropped = pending_.enforce_limit(options_.max_pending_rows);
+    counters_.dropped_rows += dropped;
+    oldest_pending_since_ = steady::now();
+    retrying_ = true;
+    const auto wait = backoff_;
+    retry_at_ = steady::now() + wait;
+    backoff_ = std::min(backoff_ * 2, options_.retry_backoff_max);
+    progress_.notify_all();
+    std::string message = options_.path.string() + ": commit of " + sizes + " failed while " + failure->step + ": " +
+                          failure->sqlite_text + "; rolled back, rows kept, retry in " + seconds_text(wait);
+    if (dropped > 0) message += "; pending list full, " + std::to_string(dropped) + " oldest rows dropped";
+    lock.unlock();
+    report(message);
+    lock.lock();
+  }
+
+  // Runs on the writer's thread only, without the lock.
+  std::optional<write_failure> write(const pending_rows& batch) {
+    sqlite3* db = db_.get();
+    std::optional<write_failure> failure;
+    const auto fail = [&](std::string step, int rc, sqlite3_stmt* stmt) {
+      failure = write_failure{std::move(step), describe(db, rc)};
+      if (stmt != nullptr) sqlite3_reset(stmt);
+      // Some errors (SQLITE_FULL, SQLITE_IOERR ...) roll back on their own; the rest we do.
+      if (sqlite3_get_autocommit(db) == 0) exec(db, "ROLLBACK");
+    };
+    int rc = exec(db, "BEGIN IMMEDIATE");
+    if (rc != SQLITE_OK) {
+      fail("beginning the transaction", rc, nullptr);
+      return failure;
+    }
+    std::size_t index = 0;
+    batch.for_each_event([&](const event_record& e) {
+      if (failure) return;
+      const statement& s = insert_event_;
+      s.bind_int64(1, to_unix_ms(e.ts));
+      s.bind_text(2, subject_type_name(e.subject));
+      s.bind_text(3, e.subject_id);
+      s.bind_text(4, e.kind);
+      s.bind_text(5, e.json);
+      const int step_rc = sqlite3_step(s.get());
+      if (step_rc != SQLITE_DONE) {
+        fail("inserting event " + std::to_string(index + 1) + " (" + e.kind + " of " + subject_type_name(e.subject) +
+                 " '" + e.subject_id + "' at " + format_iso8601_utc(e.ts) + ")",
+             step_rc, s.get());
+        return;
+      }
+      sqlite3_reset(s.get());
+      ++index;
+    });
+    if (failure) return failure;
+    for (const auto& z : batch.samples()) {
+      const statement& s = upsert_sample_;
+      s.bind_text(1, z.zone);
+      s.bind_int64(2, to_unix_ms(z.minute_start));
+      bind_optional(s, 3, z.min_margin_k);
+      bind_optional(s, 4, z.max_dew_point_c);
+      s.bind_text(5, z.worst_band);
+      bind_optional(s, 6, z.air_temp_c);
+      bind_optional(s, 7, z.rh_pct);
+      bind_optional(s, 8, z.surface_min_c);
+      bind_optional(s, 9, z.supply_c);
+      rc = sqlite3_step(s.get());
+      if (rc != SQLITE_DONE) {
+        fail("writing the sample of zone '" + z.zone + "' at " + format_iso8601_utc(z.minute_start), rc, s.get());
+        return failure;
+      }
+      sqlite3_reset(s.get());
+    }
+    for (const auto& [zone, z] : batch.zone_snapshots()) {
+      const statement& s = upsert_zone_;
+      s.bind_text(1, z.zone);
+      s.bind_text(2, z.band);
+      s.bind_int64(3, z.alarm_active ? 1 : 0);
+      s.bind_int64(4, z.acknowledged ? 1 : 0);
+      if (z.shelved_until) {
+        s.bind_int64(5, to_unix_ms(*z.shelved_until));
+      } else {
+        s.bind_null(5);
+      }
+      s.bind_text(6, z.valve);
+      s.bind_int64(7, to_unix_ms(z.ts));
+      rc = sqlite3_step(s.get());
+      if (rc != SQLITE_DONE) {
+        fail("writing the state of zone '" + zone + "'", rc, s.get());
+        return failure;
+      }
+      sqlite3_reset(s.get());
+    }
+    for (const auto& [loop, l] : batch.loop_snapshots()) {
+      const statement& s = upsert_loop_;
+      s.bind_text(1, l.loop);
+      s.bind_double(2, l.setpoint_c);
+      s.bind_int64(3, to_unix_ms(l.ts));
+      rc = sqlite3_step(s.get());
+      if (rc != SQLITE_DONE) {
+        fail("writing the state of loop '" + loop + "'", rc, s.get());
+        return failure;
+      }
+      sqlite3_reset(s.get());
+    }
+    rc = exec(db, "COMMIT");
+    if (rc != SQLITE_OK) fail("committing", rc, nullptr);
+    return failure;
+  }
+
+  // One maintenance pass; called with the lock held, runs the SQL without it.
+  void maintain(std::unique_lock<std::mutex>& lock) {
+    maintenance_requested_ = false;
+    maintenance_running_ = true;
+    const int pass = static_cast<int>(counters_.maintenance_passes);
+    lock.unlock();
+
+    std::vector<std::string> problems;
+    const timestamp now =
+        options_.retention_now
+            ? options_.retention_now()
+            : std::chrono::time_point_cast<std::chrono::milliseconds>(std::chrono::system_clock::now());
+    const std::uint64_t events_deleted =
+        delete_older(delete_old_events_, "events", cutoff_ms(now, options_.keep_events_days), problems);
+    const std::uint64_t samples_deleted =
+        delete_older(delete_old_samples_, "zone_samples", cutoff_ms(now, options_.keep_samples_days), problems);
+    vacuum_free_pages(problems);
+    checkpoint(pass, problems);
+
+    lock.lock();
+    counters_.events_deleted += events_deleted;
+    counters_.samples_deleted += samples_deleted;
+    counters_.errors += problems.size();
+    ++counters_.maintenance_passes;
+    maintenance_running_ = false;
+    progress_.notify_all();
+    if (problems.empty()) return;
+    lock.unlock();
+    for (const auto& p : problems) report(options_.path.string() + ": maintenance: " + p);
+    lock.lock();
+  }
+
+  // Deletes rows older than the cut-off in transactions of retention_batch_rows, at most
+  // retention_batches_per_pass of them, so the write lock is never held for long.
+  std::uint64_t delete_older(const statement& stmt, const char* table, std::optional<std::int64_t> cutoff,
+                             std::vector<std::string>& problems) {
+    if (!cutoff) return 0;
+    sqlite3* db = db_.get();
+    std::uint64_t deleted = 0;
+    for (int batch = 0; batch < options_.retention_batches_per_pass; ++batch) {
+      int rc = exec(db, "BEGIN IMMEDIATE");
+      if (rc != SQLITE_OK) {
+        problems.push_back(std::string("retention of ") + table + ": beginning the transaction: " + describe(db, rc) +
+                           "; retried on the next pass");
+        break;
+      }
+      stmt.bind_int64(1, *cutoff);
+      stmt.bind_int64(2, static_cast<std::int64_t>(options_.retention_batch_rows));
+      rc = sqlite3_step(stmt.get());
+      const std::string text = rc == SQLITE_DONE ? std::string() : describe(db, rc);
+      sqlite3_reset(stmt.get());
+      if (rc != SQLITE_DONE) {
+        if (sqlite3_get_autocommit(db) == 0) exec(db, "ROLLBACK");
+        problems.push_back(std::string("retention of ") + table + ": deleting: " + text + "; retried on the next pass");
+        break;
+      }
+      const auto changed = static_cast<std::uint64_t>(sqlite3_changes64(db));
+      rc = exec(db, "COMMIT");
+      if (rc != SQLITE_OK) {
+        problems.push_back(std::string("retention of ") + table + ": committing: " + describe(db, rc) +
+                           "; retried on the next pass");
+        if (sqlite3_get_autocommit(db) == 0) exec(db, "ROLLBACK");
+        break;
+      }
+      deleted += changed;
+      if (changed < options_.retention_batch_rows) break;  // nothing older left
+    }
+    return deleted;
+  }
+
+  // Gives free pages back to the file system, a bounded number per pass (never a full VACUUM).
+  void vacuum_free_pages(std::vector<std::string>& problems) {
+    sqlite3* db = db_.get();
+    std::int64_t free_pages = 0;
+    int rc = store_detail::query_int64(db, "PRAGMA freelist_count", free_pages);
+    if (rc != SQLITE_OK) {
+      problems.push_back("reading freelist_count: " + describe(db, rc));
+      return;
+    }
+    if (free_pages == 0) return;
+    const std::string sql = "PRAGMA incremental_vacuum(" + std::to_string(options_.incremental_vacuum_pages) + ")";
+    rc = exec(db, sql.c_str());
+    if (rc != SQLITE_OK) problems.push_back("incremental vacuum: " + describe(db, rc));
+  }
+
+  // PASSIVE never waits; TRUNCATE (every Nth pass) keeps the WAL file small but needs all
+  // readers gone, so it gets a short busy timeout and a busy result is not a problem.
+  void checkpoint(int pass, std::vector<std::string>& problems) {
+    sqlite3* db = db_.get();
+    const bool truncate = options_.checkpoint_truncate_every > 0 &&
+                          pass % options_.checkpoint_truncate_every == options_.checkpoint_truncate_every - 1;
+    if (truncate) sqlite3_busy_timeout(db, 100);
+    const int rc = sqlite3_wal_checkpoint_v2(
+        db, nullptr, truncate ? SQLITE_CHECKPOINT_TRUNCATE : SQLITE_CHECKPOINT_PASSIVE, nullptr, nullptr);
+    if (truncate) sqlite3_busy_timeout(db, static_cast<int>(options_.busy_timeout.count()));
+    if (rc != SQLITE_OK && (rc & 0xff) != SQLITE_BUSY) problems.push_back("WAL checkpoint: " + describe(db, rc));
+  }
+
+  const store_writer_options options_;
+  connection db_;  // used by the writer's thread only (and closed by stop() after the join)
+  statement insert_event_;
+  statement upsert_sample_;
+  statement upsert_zone_;
+  statement upsert_loop_;
+  statement delete_old_events_;
+  statement delete_old_samples_;
+  std::thread thread_;
+
+  mutable std::mutex mu_;
+  std::condition_variable wake_;      // the writer waits on it
+  std::condition_variable progress_;  // flush() and run_maintenance() wait on it
+  pending_rows pending_;
+  std::size_t in_flight_rows_ = 0;
+  std::uint64_t enqueued_seq_ = 0;   // enqueue() calls so far
+  std::uint64_t committed_seq_ = 0;  // calls whose rows are committed (or were dropped)
+  std::optional<steady::time_point> oldest_pending_since_;
+  bool retrying_ = false;  // the last commit failed: the next one waits for retry_at_ only
+  steady::time_point retry_at_{};
+  std::chrono::milliseconds backoff_{};
+  steady::time_point next_maintenance_{};
+  steady::time_point stop_deadline_{};
+  bool attempt_now_ = false;
+  bool maintenance_requested_ = false;
+  bool maintenance_running_ = false;
+  bool stopping_ = false;
+  bool thread_done_ = false;
+  bool reported_late_ = false;
+  store_writer_counters counters_;
+};
+
+store_result<store_writer> store_writer::open(store_writer_options options) {
+  const auto invalid = [&](const std::string& what) {
+    return store_error{store_error_kind::invalid_options, options.path.string() + ": " + what};
+  };
+  if (!options.report_error) return invalid("store writer needs a report_error callback");
+  if (options.max_pending_rows == 0) return invalid("max_pending_rows must be at least 1");
+  if (options.retention_batch_rows == 0) return invalid("retention_batch_rows must be at least 1");
+  if (options.retry_backoff_initial.count() <= 0 || options.retry_backoff_max < options.retry_backoff_initial) {
+    return invalid("retry back-off must be positive and its maximum at least the initial value");
+  }
+  store_detail::open_settings settings;
+  settings.busy_timeout = options.busy_timeout;
+  settings.journal_size_limit_bytes = options.journal_size_limit_bytes;
+  auto db = store_detail::open_history_db(options.path, store_detail::open_mode::read_write, settings);
+  if (!db.ok()) return db.err();
+  auto p = std::make_unique<impl>(std::move(options), std::move(db).value());
+  if (auto failure = p->prepare_statements()) return *failure;
+  p->start();
+  return store_writer(std::move(p));
+}
+
+store_writer::store_writer(std::unique_ptr<impl> p) : impl_(std::move(p)) {}
+store_writer::store_writer(store_writer&&) noexcept = default;
+store_writer& store_writer::operator=(store_writer&&) noexcept = default;
+store_writer::~store_writer() = default;
+
+void store_writer::enqueue(const engine_output& output) { impl_->enqueue(output); }
+bool store_writer::flush(std::chrono::milliseconds timeout) { return impl_->flush(timeout); }
+bool store_writer::run_maintenance(std::chrono::milliseconds timeout) { return impl_->run_maintenance(timeout); }
+void store_writer::stop(std::chrono::milliseconds timeout) {
+  if (impl_) impl_->stop(timeout);
+}
+store_writer_counters store_writer::counters() const { return impl_->counters(); }
+const std::filesystem::path& store_writer::path() const { return impl_->path(); }
+
+store_result<restored_state> store_writer::load_restored_state() const {
+  auto reader = history_reader::open(impl_->path());
+  if (!reader.ok()) return reader.err();
+  return reader.value().load_restored_state();
+}
+
+}  // namespace dewmargin

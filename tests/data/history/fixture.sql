@@ -1,0 +1,68 @@
+-- Invented history for tests/cli/test_history.sh (demo data, no real site).
+-- The DDL must stay identical to lib/store/src/migrations.cpp (schema version 1):
+-- the test StoreSchema.FixtureMatchesMigrations compares the two.
+PRAGMA auto_vacuum = INCREMENTAL;
+PRAGMA journal_mode = WAL;
+BEGIN IMMEDIATE;
+PRAGMA application_id = 1148669287;
+CREATE TABLE events (
+  id INTEGER PRIMARY KEY,
+  ts_ms INTEGER NOT NULL,
+  subject_type TEXT NOT NULL,
+  subject_id TEXT NOT NULL,
+  kind TEXT NOT NULL,
+  json TEXT NOT NULL
+);
+CREATE INDEX events_by_subject_ts ON events (subject_id, ts_ms);
+CREATE INDEX events_by_ts ON events (ts_ms);
+CREATE INDEX events_by_kind_ts ON events (kind, ts_ms);
+CREATE TABLE zone_samples (
+  zone TEXT NOT NULL,
+  minute_ms INTEGER NOT NULL,
+  min_margin_k REAL,
+  max_dew_point_c REAL,
+  worst_band TEXT NOT NULL,
+  air_temp_c REAL,
+  rh_pct REAL,
+  surface_min_c REAL,
+  supply_c REAL,
+  PRIMARY KEY (zone, minute_ms)
+);
+CREATE INDEX zone_samples_by_minute ON zone_samples (minute_ms);
+CREATE TABLE zone_state (
+  zone TEXT PRIMARY KEY,
+  band TEXT NOT NULL,
+  alarm_active INTEGER NOT NULL,
+  acknowledged INTEGER NOT NULL,
+  shelved_until_ms INTEGER,
+  valve TEXT NOT NULL,
+  ts_ms INTEGER NOT NULL
+);
+CREATE TABLE loop_state (
+  loop TEXT PRIMARY KEY,
+  setpoint_c REAL NOT NULL,
+  ts_ms INTEGER NOT NULL
+);
+PRAGMA user_version = 1;
+
+-- 2026-07-13T23:59:59Z = 1783987199000; 2026-07-14T00:00:00Z = 1783987200000;
+-- 2026-07-14T13:00:00Z = 1784034000000 (computed with GNU date -u -d).
+INSERT INTO events (id, ts_ms, subject_type, subject_id, kind, json) VALUES
+ (1, 1783987199000, 'site', '', 'service',
+  '{"ts":"2026-07-13T23:59:59Z","site":"demo-site","kind":"service","action":"start","version":"0.1.0"}'),
+ (2, 1784034000000, 'zone', 'level2-east', 'band',
+  '{"ts":"2026-07-14T13:00:00Z","site":"demo-site","zone":"level2-east","kind":"band","from":"safe","to":"tight","margin_k":1.84,"dew_point_c":16.21}'),
+ (3, 1784034060000, 'zone', 'level2-east', 'ack',
+  '{"ts":"2026-07-14T13:01:00Z","site":"demo-site","zone":"level2-east","kind":"ack","by":"AB","note":"drip tray checked, \"dry\"\nwill recheck"}'),
+ (4, 1784034060000, 'loop', 'loop-a', 'setpoint',
+  '{"ts":"2026-07-14T13:01:00Z","site":"demo-site","loop":"loop-a","kind":"setpoint","from":17.5,"to":18.25,"reason":"dew point rose"}'),
+ (5, 1784034120000, 'zone', 'level3-west', 'valve',
+  '{"ts":"2026-07-14T13:02:00Z","site":"demo-site","zone":"level3-west","kind":"valve","from":"open","to":"closed","reason":"window open"}'),
+ (6, 1784073600000, 'zone', 'level2-east', 'band',
+  '{"ts":"2026-07-15T00:00:00Z","site":"demo-site","zone":"level2-east","kind":"band","from":"tight","to":"safe","margin_k":2.5,"dew_point_c":15.1}');
+
+INSERT INTO zone_samples VALUES
+ ('level2-east', 1784034000000, 1.84, 16.21, 'tight', 25.1, 55.0, 18.05, 17.2);
+INSERT INTO zone_state VALUES ('level2-east', 'tight', 0, 1, NULL, 'open', 1784034060000);
+INSERT INTO loop_state VALUES ('loop-a', 18.25, 1784034060000);
+COMMIT;
