@@ -89,6 +89,7 @@ sensor_feed::sensor_feed(const site_config& cfg, const site_binding& binding, st
 
 void sensor_feed::add(quantity what, std::size_t index, const input_config& in, double interval_s, double sigma,
                       int decimals) {
+  if (in.unit == input_unit::fraction) decimals += 2;  // 61.5 % is 0.615
   const std::string name = std::string(quantity_name(what)) + "/" + in.topic;
   random_stream noise(seed_, name);
   const double slots = std::floor(interval_s / step_s_);
