@@ -6,15 +6,14 @@
 #include <cstdlib>
 #include <iostream>
 
-#include "dewmargin/config_loader.h"
 #include "model/report.h"
-#include "sim_core_loop.h"
+#include "test_sim_helpers.h"
 
 namespace dewmargin::sim {
 namespace {
 
 site_config demo_config() {
-  auto loaded = load_config_file(std::string(DEWMARGIN_SOURCE_DIR) + "/config/demo.yaml");
+  auto loaded = testing::load_demo();
   EXPECT_TRUE(loaded.ok()) << (loaded.errors.empty() ? "" : loaded.errors.front().to_string());
   return *loaded.config;
 }

@@ -5,7 +5,7 @@
 #include <nlohmann/json.hpp>
 
 #include "model/simulation.h"
-#include "sim_demo_config.h"
+#include "test_sim_helpers.h"
 
 namespace dewmargin::sim {
 namespace {

@@ -4,7 +4,7 @@
 #include <nlohmann/json.hpp>
 
 #include "model/service_watch.h"
-#include "sim_demo_config.h"
+#include "test_sim_helpers.h"
 
 namespace dewmargin::sim {
 namespace {

@@ -2,7 +2,7 @@
 #include <gtest/gtest.h>
 
 #include "model/site_binding.h"
-#include "sim_demo_config.h"
+#include "test_sim_helpers.h"
 
 namespace dewmargin::sim {
 namespace {

@@ -11,6 +11,13 @@ std::optional<double> number_at(const nlohmann::json& j, const char* key) {
   return it->get<double>();
 }
 
+bool flag_at(const nlohmann::json& j, const char* key, bool fallback) {
+  const auto it = j.find(key);
+  if (it == j.end()) return fallback;
+  const auto* flag = it->get_ptr<const nlohmann::json::boolean_t*>();
+  return flag ? *flag : fallback;
+}
+
 std::string text_at(const nlohmann::json& j, const char* key) {
   const auto it = j.find(key);
   if (it == j.end() || !it->is_string()) return {};
@@ -83,7 +90,7 @@ void service_watch::on_zone_state(std::string_view payload, double now_s) {
   z->margin_k = number_at(j, "margin_k");
   const auto a = j.find("alarm");
   if (a != j.end() && a->is_object()) {
-    take_alarm(*z, a->value("active", false), a->value("acknowledged", true), now_s);
+    take_alarm(*z, flag_at(*a, "active", false), flag_at(*a, "acknowledged", true), now_s);
   }
 }
 
@@ -113,7 +120,7 @@ void service_watch::on_event(std::string_view payload, double now_s) {
   const auto a = j.find("alarm");
   if (z && a != j.end() && a->is_object()) {
     if (kind == "band") z->band = to;
-    take_alarm(*z, a->value("active", false), a->value("acknowledged", true), now_s);
+    take_alarm(*z, flag_at(*a, "active", false), flag_at(*a, "acknowledged", true), now_s);
   }
 }
 
