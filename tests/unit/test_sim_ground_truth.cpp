@@ -32,9 +32,9 @@ TEST(SimGroundTruth, CountsOnlyTimeBelowTheDewPointAndCreditsTheZonesIncident) {
   EXPECT_DOUBLE_EQ(t.zones()[2].condensing_s, 90.0);
   EXPECT_DOUBLE_EQ(t.total_condensing_min(), 3.5);
   const auto& by = t.condensing_min_by_incident();
-  EXPECT_DOUBLE_EQ(by.at("door_propped"), 1.0);     // g-lobby, 0-60 s
-  EXPECT_DOUBLE_EQ(by.at("doas_coil_trip"), 1.0);   // g-lobby and l1-north-open, 30-60 s
-  EXPECT_DOUBLE_EQ(by.at("no incident"), 2.0);      // both, 60-120 s
+  EXPECT_DOUBLE_EQ(by.at("door_propped"), 1.0);    // g-lobby, 0-60 s
+  EXPECT_DOUBLE_EQ(by.at("doas_coil_trip"), 1.0);  // g-lobby and l1-north-open, 30-60 s
+  EXPECT_DOUBLE_EQ(by.at("no incident"), 2.0);     // both, 60-120 s
   EXPECT_DOUBLE_EQ(t.zones()[0].min_margin_k, -0.5);
   EXPECT_DOUBLE_EQ(t.zones()[0].min_margin_at_s, 30.0);
   EXPECT_EQ(t.worst_zone_now(), 0u);

@@ -20,7 +20,6 @@
 
 namespace dewmargin::sim::testing {
 
-
 inline std::string demo_config_text() {
   std::ifstream in(std::string(DEWMARGIN_SOURCE_DIR) + "/config/demo.yaml");
   std::ostringstream text;
@@ -41,8 +40,6 @@ inline std::string replaced(std::string text, const std::vector<std::pair<std::s
 inline config_load_result load_demo(const std::vector<std::pair<std::string, std::string>>& edits = {}) {
   return load_config_text(replaced(demo_config_text(), edits), "demo.yaml");
 }
-
-
 
 inline void run_through_core(simulation& sim, const site_config& cfg) {
   engine core(cfg);

@@ -38,13 +38,12 @@ TEST(SimSensorFeed, ReportsEachSensorAtItsInterval) {
     int at_most;
   };
   // In 3600 s with the start included: every 5 s → 721; every 30 s → 120 or 121; every 60 s → 60 or 61.
-  for (const expected& e : {expected{"plant/qf/ceiling-north/supply-temp", 721, 721},
-                            expected{"plant/qf/ceiling-north/return-temp", 360, 361},
-                            expected{"plant/qf/ceiling-north/flow", 120, 121},
-                            expected{"bldg/qf/l1-north-open/air-temp", 60, 61},
-                            expected{"bldg/qf/l1-north-open/rh", 120, 121},
-                            expected{"bldg/qf/l1-north-open/surface-temp", 120, 121},
-                            expected{"bldg/qf/l1-south-open/wet-switch", 12, 13}}) {
+  for (const expected& e :
+       {expected{"plant/qf/ceiling-north/supply-temp", 721, 721},
+        expected{"plant/qf/ceiling-north/return-temp", 360, 361}, expected{"plant/qf/ceiling-north/flow", 120, 121},
+        expected{"bldg/qf/l1-north-open/air-temp", 60, 61}, expected{"bldg/qf/l1-north-open/rh", 120, 121},
+        expected{"bldg/qf/l1-north-open/surface-temp", 120, 121},
+        expected{"bldg/qf/l1-south-open/wet-switch", 12, 13}}) {
     EXPECT_GE(per_topic[e.topic], e.at_least) << e.topic;
     EXPECT_LE(per_topic[e.topic], e.at_most) << e.topic;
   }
@@ -113,8 +112,8 @@ TEST(SimSensorFeed, SameSeedSameReadingsOtherSeedOtherNoise) {
 }
 
 TEST(SimSensorFeed, WallClockConfigWithoutFieldsGetsBareNumbers) {
-  auto sim = make(testing::load_demo({{"clock:\n  source: readings", "clock:\n  source: wall"},
-                                      {", field: /value", ""}}));
+  auto sim =
+      make(testing::load_demo({{"clock:\n  source: readings", "clock:\n  source: wall"}, {", field: /value", ""}}));
   std::vector<outbound> out;
   sim->begin(out);
   ASSERT_FALSE(out.empty());
@@ -139,7 +138,8 @@ TEST(SimSensorFeed, EventTimeNeedsAFieldForTheTime) {
 }
 
 TEST(SimSensorFeed, FractionHumidityIsSentAsFraction) {
-  auto sim = make(testing::load_demo({{"bldg/qf/g-lobby/rh, field: /value", "bldg/qf/g-lobby/rh, field: /value, unit: fraction"}}));
+  auto sim = make(
+      testing::load_demo({{"bldg/qf/g-lobby/rh, field: /value", "bldg/qf/g-lobby/rh, field: /value, unit: fraction"}}));
   std::vector<outbound> out;
   sim->begin(out);
   for (const auto& m : out) {

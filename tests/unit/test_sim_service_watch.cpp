@@ -10,8 +10,10 @@ namespace dewmargin::sim {
 namespace {
 
 std::string zone_state(const char* zone, const char* band, double margin_k, bool active, bool acknowledged) {
-  nlohmann::json j{{"zone", zone},         {"band", band},
-                   {"margin_k", margin_k}, {"alarm", {{"active", active}, {"acknowledged", acknowledged}}}};
+  nlohmann::json j{{"zone", zone},
+                   {"band", band},
+                   {"margin_k", margin_k},
+                   {"alarm", {{"active", active}, {"acknowledged", acknowledged}}}};
   return j.dump();
 }
 
@@ -24,7 +26,8 @@ service_watch make_watch(double ack_after_s) {
 TEST(SimServiceWatch, AcknowledgesEachNewAlarmAfterTheDelayOnce) {
   service_watch w = make_watch(300.0);
   std::vector<outbound> out;
-  ASSERT_TRUE(w.on_message("dewmargin/zone/g-lobby/state", zone_state("g-lobby", "condensing", -0.2, true, false), 100.0));
+  ASSERT_TRUE(
+      w.on_message("dewmargin/zone/g-lobby/state", zone_state("g-lobby", "condensing", -0.2, true, false), 100.0));
   EXPECT_EQ(w.tally().alarms_raised, 1);
   w.operator_actions(399.0, out);
   EXPECT_TRUE(out.empty());
@@ -85,7 +88,8 @@ TEST(SimServiceWatch, CountsEventsAndFindsTheWorstZone) {
   EXPECT_EQ(w.worst_zone(), nullptr);
   EXPECT_EQ(w.unknown_zones(), 9);  // g-lobby is tight now, the others unknown
   w.on_message("dewmargin/zone/g-lobby/state", zone_state("g-lobby", "tight", 1.8, false, true), 11.0);
-  w.on_message("dewmargin/zone/l2-south-meeting/state", zone_state("l2-south-meeting", "alarm", 0.7, true, false), 11.0);
+  w.on_message("dewmargin/zone/l2-south-meeting/state", zone_state("l2-south-meeting", "alarm", 0.7, true, false),
+               11.0);
   ASSERT_NE(w.worst_zone(), nullptr);
   EXPECT_EQ(w.worst_zone()->id, "l2-south-meeting");
   EXPECT_FALSE(w.on_message("bldg/qf/g-lobby/rh", "{}", 12.0));

@@ -25,12 +25,15 @@ TEST(SimSiteBinding, MismatchesAreAllNamed) {
     const char* message;
   };
   const std::vector<bad_case> cases = {
-      {"zone renamed", {{"g-meeting", "g-meet"}},
+      {"zone renamed",
+       {{"g-meeting", "g-meet"}},
        "zone g-meeting of building quayside-four is not in the config; config zone g-meet is not in building "
        "quayside-four"},
-      {"zone on another loop", {{"    loop: slab-lobby", "    loop: ceiling-north"}},
+      {"zone on another loop",
+       {{"    loop: slab-lobby", "    loop: ceiling-north"}},
        "zone g-lobby is on loop ceiling-north in the config but on slab-lobby in the building"},
-      {"dehumidifier renamed", {{"id: doas-roof", "id: doas-east"}},
+      {"dehumidifier renamed",
+       {{"id: doas-roof", "id: doas-east"}},
        "config dehumidifier doas-east is not in building quayside-four (it has doas-roof)"},
   };
   for (const auto& c : cases) {
@@ -74,12 +77,15 @@ TEST(SimSiteBinding, DecodesPlantCommandsAndNamesBadOnes) {
     const char* payload;
     const char* message;
   };
-  for (const bad& c : {bad{"bldg/qf/g-lobby/valve/set", "half", "bldg/qf/g-lobby/valve/set: valve command 'half' is "
-                                                                "neither 'open' nor 'closed'"},
-                       bad{"plant/qf/slab-lobby/supply-sp/set", "warm", "plant/qf/slab-lobby/supply-sp/set: 'warm' is "
-                                                                        "not a temperature"},
-                       bad{"plant/qf/slab-lobby/supply-sp/set", "", "plant/qf/slab-lobby/supply-sp/set: '' is not a "
-                                                                    "temperature"},
+  for (const bad& c : {bad{"bldg/qf/g-lobby/valve/set", "half",
+                           "bldg/qf/g-lobby/valve/set: valve command 'half' is "
+                           "neither 'open' nor 'closed'"},
+                       bad{"plant/qf/slab-lobby/supply-sp/set", "warm",
+                           "plant/qf/slab-lobby/supply-sp/set: 'warm' is "
+                           "not a temperature"},
+                       bad{"plant/qf/slab-lobby/supply-sp/set", "",
+                           "plant/qf/slab-lobby/supply-sp/set: '' is not a "
+                           "temperature"},
                        bad{"bldg/qf/g-lobby/rh", "50", "bldg/qf/g-lobby/rh: not a plant command topic"}}) {
     const auto r = b.decode(c.topic, c.payload);
     ASSERT_FALSE(r.ok()) << c.topic << " " << c.payload;

@@ -1,11 +1,12 @@
 #include "run_loop.h"
 
+#include <mqtt/async_client.h>
+#include <unistd.h>
+
 #include <chrono>
 #include <cmath>
-#include <mqtt/async_client.h>
 #include <ostream>
 #include <thread>
-#include <unistd.h>
 
 #include "model/report.h"
 
@@ -77,8 +78,8 @@ int run_with_broker(simulation& sim, const run_options& o, std::ostream& out, st
   const std::string client_id = "dewmargin-sim-" + std::to_string(::getpid());
   try {
     mqtt::async_client cli(o.broker_uri, client_id);
-    auto opts = mqtt::connect_options_builder().clean_session(true).keep_alive_interval(std::chrono::seconds(30))
-                    .finalize();
+    auto opts =
+        mqtt::connect_options_builder().clean_session(true).keep_alive_interval(std::chrono::seconds(30)).finalize();
     cli.start_consuming();
     const auto deadline = steady::now() + std::chrono::milliseconds(static_cast<long long>(o.wait_service_s * 1000));
     std::string why;
@@ -103,8 +104,8 @@ int run_with_broker(simulation& sim, const run_options& o, std::ostream& out, st
       }
       sim.on_message(msg->get_topic(), msg->get_payload_str());
     }
-    out << "dewmargin-sim: service online; playing '" << sim.script().name << "' from "
-        << format_iso8601_utc(sim.now()) << " at " << o.speed << "x" << std::endl;
+    out << "dewmargin-sim: service online; playing '" << sim.script().name << "' from " << format_iso8601_utc(sim.now())
+        << " at " << o.speed << "x" << std::endl;
 
     status_printer status(o.status_every_s, sim.now_s());
     std::vector<outbound> outgoing;
@@ -136,7 +137,8 @@ int run_with_broker(simulation& sim, const run_options& o, std::ostream& out, st
     }
     // The service's answers to the last readings.
     const auto drain_until = steady::now() + k_trailing_drain;
-    while (cli.try_consume_message_until(&msg, drain_until) && msg) sim.on_message(msg->get_topic(), msg->get_payload_str());
+    while (cli.try_consume_message_until(&msg, drain_until) && msg)
+      sim.on_message(msg->get_topic(), msg->get_payload_str());
     const double wall_s = std::chrono::duration<double>(steady::now() - wall_start).count();
     out << "dewmargin-sim: played " << (sim.now_s() - sim_start_s) / 3600.0 << " h in " << wall_s
         << " s of wall time (worst lag behind the pace " << worst_lag_s << " s)" << std::endl;

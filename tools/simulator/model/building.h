@@ -4,6 +4,7 @@
 // south façade), a cooled slab floor in the lobby on a third loop, and one dedicated
 // outdoor-air unit (DOAS) on the roof that dries the ventilation air for every zone.
 //
+// clang-format off
 // Every main constant of the model, with its source. "from memory": a value recalled, not
 // looked up; "common practice, no source": a usual modelling choice; "invented": demo data.
 //
@@ -24,13 +25,14 @@
 // | ventilation air                            | 10 L/s per design person | common European office design value (from memory) |
 // | DOAS design supply dew point, air temp.    | 11 °C, 18 °C             | invented design (typical for chilled-ceiling buildings, from memory) |
 // | design supply water                        | 16 °C ceilings, 19 °C slab | invented design (typical, from memory) |
-// | room temperature control (the BMS's own)  | 23–25 °C proportional band | common practice, no source (scales the panel's water share; the service's valve is a separate on/off valve) |
+// | room temperature control (the BMS's own)   | 23–25 °C proportional band | common practice, no source (scales the panel's water share; the service's valve is a separate on/off valve) |
 // | lighting and equipment                     | 12 W/m² occupied, 3 W/m² empty | common practice, no source |
-// | effective heat capacity of a zone          | 8 × its air's             | common practice, no source (furniture, linings) |
+// | effective heat capacity of a zone          | 8 × its air's            | common practice, no source (furniture, linings) |
 // | moisture buffering by furnishings          | none                     | modelling choice: humidity moves as fast as the air allows (harder for the service) |
 // | infiltration                               | 0.15–0.5 air changes per hour | invented, leaky coastal building |
 // | propped lobby door                         | +1.5 m³/s of outdoor air | invented (a wide entrance door propped open in a sea breeze) |
 // | condensation removing moisture from air    | not modelled             | modelling choice: slightly overstates humidity while surfaces are wet |
+// clang-format on
 #include <string>
 #include <vector>
 
@@ -62,33 +64,33 @@ struct surface_physics {
 surface_physics physics_of(surface_kind kind);
 
 struct zone_physics {
-  std::string id;               // must match a zone id of the shared config
-  std::string loop;             // loop id
+  std::string id;    // must match a zone id of the shared config
+  std::string loop;  // loop id
   double floor_m2 = 0.0;
   double height_m = 0.0;
-  double surface_m2 = 0.0;      // chilled panel (or slab) area
+  double surface_m2 = 0.0;  // chilled panel (or slab) area
   surface_kind surface = surface_kind::metal_ceiling;
   double design_people = 0.0;
   double supply_air_l_s = 0.0;  // DOAS air delivered to the zone
   double infiltration_ach = 0.0;
-  double envelope_ua_w_k = 0.0; // conduction through façade and roof
-  double solar_peak_w_m2 = 0.0; // per m² floor, at solar_peak_hour
+  double envelope_ua_w_k = 0.0;  // conduction through façade and roof
+  double solar_peak_w_m2 = 0.0;  // per m² floor, at solar_peak_hour
   double solar_peak_hour = 13.0;
   double extra_moisture_g_h = 0.0;  // kettles, dishwasher (pantry), over the lunch hours
 };
 
 struct loop_physics {
-  std::string id;               // must match a loop id of the shared config
+  std::string id;  // must match a loop id of the shared config
   double design_supply_c = 16.0;
-  double flow_l_s = 1.0;        // constant-speed pump with a bypass
+  double flow_l_s = 1.0;  // constant-speed pump with a bypass
   double plant_tau_s = 240.0;
 };
 
 struct doas_physics {
-  std::string id;               // must match a dehumidifier id of the shared config
+  std::string id;  // must match a dehumidifier id of the shared config
   double design_dew_point_c = 11.0;
-  double min_dew_point_c = 8.0;   // the driest the coil can make the air
-  double supply_air_c = 18.0;     // after reheat, while the coil works
+  double min_dew_point_c = 8.0;  // the driest the coil can make the air
+  double supply_air_c = 18.0;    // after reheat, while the coil works
   double coil_tau_s = 300.0;
 };
 

@@ -89,15 +89,15 @@ void plant_model::step_zone(std::size_t i, double t_s, double dt_s) {
   const double w_outdoor = humidity_ratio_from_dew_point(outdoor_.dew_point_c);
   double moisture_kg_s = z.people * k_latent_gain_per_person_w / k_latent_heat_j_per_kg;
   if (p.extra_moisture_g_h > 0.0 && scenario_.occupancy.lunch_at(t_s)) moisture_kg_s += p.extra_moisture_g_h / 3.6e6;
-  const double dw_dt = (supply_kg_s * (w_supply - z.humidity_ratio) + infiltration_kg_s * (w_outdoor - z.humidity_ratio) +
-                        moisture_kg_s) /
+  const double dw_dt = (supply_kg_s * (w_supply - z.humidity_ratio) +
+                        infiltration_kg_s * (w_outdoor - z.humidity_ratio) + moisture_kg_s) /
                        air_mass_kg;
 
   // Heat: people, lights and equipment, sun, air flows, façade, and the chilled surface.
   const double equipment_w_m2 = k_equipment_empty_w_m2 + (k_equipment_occupied_w_m2 - k_equipment_empty_w_m2) * share;
   const double sun = std::max(0.0, std::cos(3.141592653589793 * (t_s / 3600.0 - p.solar_peak_hour) / 14.0));
-  const double gains_w = z.people * k_sensible_gain_per_person_w + equipment_w_m2 * p.floor_m2 +
-                         p.solar_peak_w_m2 * p.floor_m2 * sun;
+  const double gains_w =
+      z.people * k_sensible_gain_per_person_w + equipment_w_m2 * p.floor_m2 + p.solar_peak_w_m2 * p.floor_m2 * sun;
   const double cp = k_air_specific_heat_j_kgk;
   z.surface_cooling_w = sp.heat_transfer_w_m2k * p.surface_m2 * (z.air_c - z.surface_c);
   const double flows_w = supply_kg_s * cp * (doas_.supply_air_c - z.air_c) +

@@ -18,18 +18,18 @@ struct zone_state {
   bool valve_open = true;
   double people = 0.0;
   double surface_cooling_w = 0.0;  // heat the surface takes from the room (negative: heating)
-  double dew_point_c = 0.0;     // derived from humidity_ratio after each step
+  double dew_point_c = 0.0;        // derived from humidity_ratio after each step
 };
 
 struct loop_state {
-  double setpoint_c = 0.0;      // last command (design value until one comes)
+  double setpoint_c = 0.0;  // last command (design value until one comes)
   double supply_c = 0.0;
   double return_c = 0.0;
-  double cooling_w = 0.0;       // sum over the zones with open valves
+  double cooling_w = 0.0;  // sum over the zones with open valves
 };
 
 struct doas_state {
-  double request_c = 0.0;       // requested supply dew point (design value until one comes)
+  double request_c = 0.0;  // requested supply dew point (design value until one comes)
   double supply_dew_point_c = 0.0;
   double supply_air_c = 0.0;
 };

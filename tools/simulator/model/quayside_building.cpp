@@ -6,16 +6,18 @@ namespace dewmargin::sim {
 
 surface_physics physics_of(surface_kind kind) {
   switch (kind) {
-    case surface_kind::metal_ceiling: return {10.8, 0.85, 180.0, 720.0};
-    case surface_kind::slab_floor: return {7.0, 0.55, 5400.0, 14400.0};
+    case surface_kind::metal_ceiling:
+      return {10.8, 0.85, 180.0, 720.0};
+    case surface_kind::slab_floor:
+      return {7.0, 0.55, 5400.0, 14400.0};
   }
   return {10.8, 0.85, 180.0, 720.0};
 }
 
 namespace {
 
-zone_physics zone(std::string id, std::string loop, double floor_m2, double height_m, double surface_m2,
-                  double people, double solar_w_m2, double ua_w_k, double ach) {
+zone_physics zone(std::string id, std::string loop, double floor_m2, double height_m, double surface_m2, double people,
+                  double solar_w_m2, double ua_w_k, double ach) {
   zone_physics z;
   z.id = std::move(id);
   z.loop = std::move(loop);
@@ -56,7 +58,8 @@ building quayside_four() {
   b.zones.push_back(zone("l3-north-open", "ceiling-north", 220.0, 2.8, 85.0, 22.0, 10.0, 250.0, 0.2));
   b.zones.push_back(zone("l3-south-open", "ceiling-south", 220.0, 2.8, 105.0, 22.0, 28.0, 270.0, 0.2));
 
-  b.loops = {{"ceiling-north", 16.0, 2.0, 240.0}, {"ceiling-south", 16.0, 2.4, 240.0}, {"slab-lobby", 19.0, 1.2, 240.0}};
+  b.loops = {
+      {"ceiling-north", 16.0, 2.0, 240.0}, {"ceiling-south", 16.0, 2.4, 240.0}, {"slab-lobby", 19.0, 1.2, 240.0}};
   b.doas = {"doas-roof", 11.0, 8.0, 18.0, 300.0};
   return b;
 }

@@ -14,8 +14,8 @@ class random_stream {
   random_stream(std::uint64_t seed, std::string_view name);
 
   std::uint64_t next_u64();
-  double uniform();                      // [0, 1)
-  double normal(double sigma);           // mean 0
+  double uniform();             // [0, 1)
+  double normal(double sigma);  // mean 0
 
  private:
   std::uint64_t state_;

@@ -127,10 +127,9 @@ std::string trace_rows(const simulation& sim) {
     const loop_state& l = plant.loops()[plant.loop_of(i)];
     char line[320];
     std::snprintf(line, sizeof line, "%s,%s,%.3f,%.2f,%.3f,%.3f,%.3f,%s,%.1f,%.3f,%.2f,%.2f,%.2f,%.3f,%.2f\n",
-                  t.c_str(), plant.layout().zones[i].id.c_str(), z.air_c,
-                  relative_humidity_pct(z.air_c, z.dew_point_c), z.dew_point_c, z.surface_c,
-                  z.surface_c - z.dew_point_c, z.valve_open ? "open" : "closed", z.people, l.supply_c, l.setpoint_c,
-                  out.air_c, out.dew_point_c, doas.supply_dew_point_c, doas.request_c);
+                  t.c_str(), plant.layout().zones[i].id.c_str(), z.air_c, relative_humidity_pct(z.air_c, z.dew_point_c),
+                  z.dew_point_c, z.surface_c, z.surface_c - z.dew_point_c, z.valve_open ? "open" : "closed", z.people,
+                  l.supply_c, l.setpoint_c, out.air_c, out.dew_point_c, doas.supply_dew_point_c, doas.request_c);
     os << line;
   }
   return os.str();
@@ -159,12 +158,18 @@ std::string summary_json(const simulation& sim) {
   j["condensation_zone_min_while"] = by;
   if (sim.options().with_service) {
     const auto& t = sim.watch().tally();
-    j["service"] = {{"alarms_raised", t.alarms_raised},     {"acknowledged", t.acknowledged},
-                    {"acks_sent", t.acks_sent},             {"valves_closed", t.valves_closed},
-                    {"valves_opened", t.valves_opened},     {"setpoint_events", t.setpoint_events},
-                    {"dehumidify_events", t.dehumidify_events}, {"input_events", t.input_events},
-                    {"rejected", t.rejected},               {"band_events", t.band_events},
-                    {"alarms_by_zone", t.alarms_by_zone},   {"bands_entered", t.bands_entered}};
+    j["service"] = {{"alarms_raised", t.alarms_raised},
+                    {"acknowledged", t.acknowledged},
+                    {"acks_sent", t.acks_sent},
+                    {"valves_closed", t.valves_closed},
+                    {"valves_opened", t.valves_opened},
+                    {"setpoint_events", t.setpoint_events},
+                    {"dehumidify_events", t.dehumidify_events},
+                    {"input_events", t.input_events},
+                    {"rejected", t.rejected},
+                    {"band_events", t.band_events},
+                    {"alarms_by_zone", t.alarms_by_zone},
+                    {"bands_entered", t.bands_entered}};
     const auto& c = sim.commands();
     nlohmann::json sp = nlohmann::json::object();
     for (const auto& kv : c.setpoint_by_loop) sp[kv.first] = {{"min_c", kv.second.min}, {"max_c", kv.second.max}};

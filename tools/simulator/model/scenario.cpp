@@ -24,16 +24,23 @@ void humid_coastal_weather(scenario& s) {
 
 const char* incident_kind_name(incident_kind k) {
   switch (k) {
-    case incident_kind::door_propped: return "door_propped";
-    case incident_kind::doas_coil_trip: return "doas_coil_trip";
-    case incident_kind::humidity_silent: return "humidity_silent";
-    case incident_kind::switch_wet: return "switch_wet";
-    case incident_kind::crowd: return "crowd";
+    case incident_kind::door_propped:
+      return "door_propped";
+    case incident_kind::doas_coil_trip:
+      return "doas_coil_trip";
+    case incident_kind::humidity_silent:
+      return "humidity_silent";
+    case incident_kind::switch_wet:
+      return "switch_wet";
+    case incident_kind::crowd:
+      return "crowd";
   }
   return "incident";
 }
 
-double daily_cycle::at(double t_s) const { return mean + amplitude * std::cos(k_two_pi * (t_s / 3600.0 - peak_hour) / 24.0); }
+double daily_cycle::at(double t_s) const {
+  return mean + amplitude * std::cos(k_two_pi * (t_s / 3600.0 - peak_hour) / 24.0);
+}
 
 double occupancy_schedule::share_at(double t_s) const {
   const double hour = t_s / 3600.0;
@@ -97,7 +104,8 @@ scenario short_day() {
       {incident_kind::humidity_silent, "l3-north-open", h(6.5), h(6.75), 0.0,
        "humidity sensor in l3-north-open silent (flat battery)"},
       {incident_kind::doas_coil_trip, "", h(7.0), h(7.75), 0.0, "DOAS dehumidifying coil tripped"},
-      {incident_kind::crowd, "l2-south-meeting", h(7.0), h(8.0), 16.0, "packed meeting in l2-south-meeting (16 people)"},
+      {incident_kind::crowd, "l2-south-meeting", h(7.0), h(8.0), 16.0,
+       "packed meeting in l2-south-meeting (16 people)"},
       {incident_kind::door_propped, "g-lobby", h(7.25), h(8.0), 0.0, "lobby entrance door propped open"},
       {incident_kind::switch_wet, "l1-south-open", h(8.0), h(8.2), 0.0,
        "condensation switch in l1-south-open wet (dripping pipe fitting)"},

@@ -19,11 +19,11 @@ const char* incident_kind_name(incident_kind k);
 
 struct incident {
   incident_kind kind;
-  std::string zone;          // empty for the DOAS
+  std::string zone;  // empty for the DOAS
   double start_s = 0.0;
   double end_s = 0.0;
-  double people = 0.0;       // crowd only
-  std::string description;   // one line, for the status line and the summary
+  double people = 0.0;      // crowd only
+  std::string description;  // one line, for the status line and the summary
 
   [[nodiscard]] bool active_at(double t_s) const { return t_s >= start_s && t_s < end_s; }
 };

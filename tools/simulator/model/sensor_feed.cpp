@@ -16,14 +16,22 @@ constexpr double k_switch_repeat_s = 300.0;
 
 const char* quantity_name(quantity q) {
   switch (q) {
-    case quantity::air_temp: return "air_temp";
-    case quantity::humidity: return "humidity";
-    case quantity::surface: return "surface";
-    case quantity::supply: return "supply";
-    case quantity::return_water: return "return";
-    case quantity::flow: return "flow";
-    case quantity::condensation_switch: return "switch";
-    case quantity::door_contact: return "contact";
+    case quantity::air_temp:
+      return "air_temp";
+    case quantity::humidity:
+      return "humidity";
+    case quantity::surface:
+      return "surface";
+    case quantity::supply:
+      return "supply";
+    case quantity::return_water:
+      return "return";
+    case quantity::flow:
+      return "flow";
+    case quantity::condensation_switch:
+      return "switch";
+    case quantity::door_contact:
+      return "contact";
   }
   return "sensor";
 }
@@ -33,14 +41,19 @@ bool is_state(quantity q) { return q == quantity::condensation_switch || q == qu
 // From the model's units (°C, %, L/s) to the unit the config says the sensor sends.
 double in_sensor_units(double v, input_unit unit) {
   switch (unit) {
-    case input_unit::fahrenheit: return units::celsius_to_fahrenheit(v);
-    case input_unit::fraction: return v / 100.0;
-    case input_unit::cubic_metres_per_hour: return v * 3.6;
-    case input_unit::us_gallons_per_minute: return v * 60.0 / units::k_litres_per_us_gallon;
+    case input_unit::fahrenheit:
+      return units::celsius_to_fahrenheit(v);
+    case input_unit::fraction:
+      return v / 100.0;
+    case input_unit::cubic_metres_per_hour:
+      return v * 3.6;
+    case input_unit::us_gallons_per_minute:
+      return v * 60.0 / units::k_litres_per_us_gallon;
     case input_unit::none:
     case input_unit::celsius:
     case input_unit::percent:
-    case input_unit::litres_per_second: return v;
+    case input_unit::litres_per_second:
+      return v;
   }
   return v;
 }
@@ -79,7 +92,8 @@ sensor_feed::sensor_feed(const site_config& cfg, const site_binding& binding, st
     if (clock_.source == clock_source::readings && s.input->field.empty()) {
       throw std::invalid_argument("topic " + s.input->topic +
                                   ": with clock source readings every input needs a field (the payload carries "
-                                  "the time at " + clock_.field + ")");
+                                  "the time at " +
+                                  clock_.field + ")");
     }
     if (clock_.source == clock_source::readings && s.input->field == clock_.field) {
       throw std::invalid_argument("topic " + s.input->topic + ": field " + s.input->field + " is also the clock field");
@@ -148,20 +162,29 @@ void sensor_feed::sample(double t_s, timestamp ts, const plant_model& plant, con
     double value = 0.0;
     double sigma = s.sigma;
     switch (s.what) {
-      case quantity::air_temp: value = zones[s.index].air_c; break;
+      case quantity::air_temp:
+        value = zones[s.index].air_c;
+        break;
       case quantity::humidity:
         if (sc.active(incident_kind::humidity_silent, layout.zones[s.index].id, t_s)) continue;
         value = relative_humidity_pct(zones[s.index].air_c, zones[s.index].dew_point_c);
         break;
-      case quantity::surface: value = zones[s.index].surface_c; break;
-      case quantity::supply: value = loops[s.index].supply_c; break;
-      case quantity::return_water: value = loops[s.index].return_c; break;
+      case quantity::surface:
+        value = zones[s.index].surface_c;
+        break;
+      case quantity::supply:
+        value = loops[s.index].supply_c;
+        break;
+      case quantity::return_water:
+        value = loops[s.index].return_c;
+        break;
       case quantity::flow:
         value = layout.loops[s.index].flow_l_s;
         sigma = s.sigma * value;
         break;
       case quantity::condensation_switch:
-      case quantity::door_contact: break;
+      case quantity::door_contact:
+        break;
     }
     value += s.noise.normal(sigma);
     if (s.what == quantity::humidity) value = std::clamp(value, 0.1, 100.0);

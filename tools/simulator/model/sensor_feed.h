@@ -49,14 +49,14 @@ class sensor_feed {
  private:
   struct stream {
     quantity what;
-    std::size_t index;          // zone or loop of the building
+    std::size_t index;  // zone or loop of the building
     const input_config* input;
     double interval_s;
     double phase_s;
     double sigma;
     int decimals;
     random_stream noise;
-    int last_state = -1;        // switches: -1 never sent
+    int last_state = -1;  // switches: -1 never sent
     std::string inactive_word;
   };
   void add(quantity what, std::size_t index, const input_config& in, double interval_s, double sigma, int decimals);

@@ -56,7 +56,7 @@ void service_watch::take_alarm(watched_zone& z, bool active, bool acknowledged, 
     z.ack_due_s.reset();
     z.ack_sent = false;
   } else if (z.acknowledged && ack_after_s_ > 0.0) {
-    z.ack_due_s = now_s + ack_after_s_;   // newly unacknowledged (raised or re-armed)
+    z.ack_due_s = now_s + ack_after_s_;  // newly unacknowledged (raised or re-armed)
     z.ack_sent = false;
   }
   z.acknowledged = acknowledged;

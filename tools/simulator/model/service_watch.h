@@ -20,16 +20,16 @@ struct watched_zone {
   std::optional<double> margin_k;
   bool alarm_active = false;
   bool acknowledged = true;
-  std::optional<double> ack_due_s;   // when the simulated operator will acknowledge
+  std::optional<double> ack_due_s;  // when the simulated operator will acknowledge
   bool ack_sent = false;
 };
 
 struct service_tally {
   bool online = false;
-  int alarms_raised = 0;        // a zone's alarm going from inactive to active
-  int acknowledged = 0;         // `ack` events
-  int acks_sent = 0;            // acknowledgements the simulated operator sent
-  int valves_closed = 0;        // `valve` events by target position
+  int alarms_raised = 0;  // a zone's alarm going from inactive to active
+  int acknowledged = 0;   // `ack` events
+  int acks_sent = 0;      // acknowledgements the simulated operator sent
+  int valves_closed = 0;  // `valve` events by target position
   int valves_opened = 0;
   int setpoint_events = 0;
   int dehumidify_events = 0;
@@ -37,7 +37,7 @@ struct service_tally {
   int rejected = 0;
   int band_events = 0;
   std::map<std::string, int> alarms_by_zone;
-  std::map<std::string, int> bands_entered;   // band name -> times entered (from band events)
+  std::map<std::string, int> bands_entered;  // band name -> times entered (from band events)
 };
 
 class service_watch {

@@ -21,10 +21,10 @@
 namespace dewmargin::sim {
 
 struct simulation_options {
-  bool with_service = true;          // false: the baseline, the plant on its design settings
+  bool with_service = true;  // false: the baseline, the plant on its design settings
   std::uint64_t seed = 20260714;
-  double step_s = 5.0;               // model step and reading grid
-  double ack_after_s = 300.0;        // simulated operator; <= 0: never acknowledges
+  double step_s = 5.0;         // model step and reading grid
+  double ack_after_s = 300.0;  // simulated operator; <= 0: never acknowledges
   std::string operator_name = "sim-operator";
 };
 

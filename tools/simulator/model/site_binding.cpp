@@ -16,7 +16,8 @@ const T* find_id(const std::vector<T>& items, const std::string& id) {
 
 std::string trimmed(std::string_view s) {
   while (!s.empty() && (s.front() == ' ' || s.front() == '\n' || s.front() == '\t')) s.remove_prefix(1);
-  while (!s.empty() && (s.back() == ' ' || s.back() == '\n' || s.back() == '\t' || s.back() == '\r')) s.remove_suffix(1);
+  while (!s.empty() && (s.back() == ' ' || s.back() == '\n' || s.back() == '\t' || s.back() == '\r'))
+    s.remove_suffix(1);
   return std::string(s);
 }
 
@@ -50,8 +51,8 @@ result<site_binding> site_binding::bind(const site_config& cfg, const building& 
     if (dc.id == b.doas.id) {
       out.doas_ = &dc;
     } else {
-      problems.push_back("config dehumidifier " + dc.id + " is not in building " + b.name + " (it has " +
-                         b.doas.id + ")");
+      problems.push_back("config dehumidifier " + dc.id + " is not in building " + b.name + " (it has " + b.doas.id +
+                         ")");
     }
   }
   if (!problems.empty()) {

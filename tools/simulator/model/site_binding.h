@@ -18,9 +18,9 @@ enum class command_target { setpoint, valve, dew_point_request };
 
 struct plant_command {
   command_target target = command_target::setpoint;
-  std::size_t index = 0;     // loop (setpoint) or zone (valve) of the building
-  double value_c = 0.0;      // setpoint or dew-point request
-  bool open = false;         // valve
+  std::size_t index = 0;  // loop (setpoint) or zone (valve) of the building
+  double value_c = 0.0;   // setpoint or dew-point request
+  bool open = false;      // valve
 };
 
 class site_binding {
