@@ -53,7 +53,7 @@ listening() { (exec 3<>"/dev/tcp/127.0.0.1/$1") 2>/dev/null; }
 
 # 1. The broker, on a free loopback port (a port taken in between: pick another).
 port=
-for attempt in 1 2 3; do
+for _ in 1 2 3; do
   candidate=$(free_port)
   printf 'listener %s 127.0.0.1\nallow_anonymous true\npersistence false\nlog_dest stderr\nmax_queued_messages 0\n' \
     "$candidate" >"$work/mosquitto.conf"
