@@ -94,8 +94,10 @@ TEST_F(MqttLink, ConnectsWhenBrokerAppearsLater) {
   link.publish(test_support::state_message("out/zone/a/state", "queued-before-connect"));
   ASSERT_TRUE(eventually([&] { return !link.last_connect_error().empty(); }, 5s));
   EXPECT_FALSE(link.connected());
-  EXPECT_EQ(link.last_connect_error(), "MQTT error [-1]: TCP/TLS connect failure (nothing accepts TCP connections at "
-                                       "127.0.0.1:" + std::to_string(broker.port()) + ")");
+  EXPECT_EQ(link.last_connect_error(),
+            "MQTT error [-1]: TCP/TLS connect failure (nothing accepts TCP connections at "
+            "127.0.0.1:" +
+                std::to_string(broker.port()) + ")");
   EXPECT_TRUE(log_->any_contains("connect to " + broker.uri() + " as link-late-broker failed"));
 
   broker.start();
@@ -203,8 +205,7 @@ TEST_F(MqttLink, ResendsMessagesInFlightWhenTheBrokerDies) {
   EXPECT_TRUE(log_->any_contains("30 unacknowledged message(s) will be sent again"));
 
   broker.start();
-  ASSERT_TRUE(collector.wait_for_count("out/events", 30, 30s))
-      << "got " << collector.messages_on("out/events").size();
+  ASSERT_TRUE(collector.wait_for_count("out/events", 30, 30s)) << "got " << collector.messages_on("out/events").size();
   std::vector<std::string> first_seen;
   std::set<std::string> seen;
   for (const auto& m : collector.messages_on("out/events")) {
@@ -215,8 +216,7 @@ TEST_F(MqttLink, ResendsMessagesInFlightWhenTheBrokerDies) {
   EXPECT_EQ(first_seen, expected);
   ASSERT_TRUE(eventually([&] { return link.stats().outbox_size == 0; }, 10s));
   std::fprintf(stderr, "measured: %zu copies of 30 events after the hang; published %llu\n",
-               collector.messages_on("out/events").size(),
-               static_cast<unsigned long long>(link.stats().published));
+               collector.messages_on("out/events").size(), static_cast<unsigned long long>(link.stats().published));
   link.shutdown(k_stopped, 5s);
 }
 
@@ -239,8 +239,8 @@ TEST_F(MqttLink, RepublishesRetainedStatesAfterBrokerLostThem) {
     mqtt_test_client empty(broker.uri(), {"out/#"});
     EXPECT_FALSE(empty.wait_for_payload("out/zone/a/state", "latest", 200ms)) << "the broker really forgot";
   }
-  ASSERT_TRUE(eventually([&] { return link.stats().reconnects >= 1 && link.ready() && link.stats().outbox_size == 0; },
-                         20s));
+  ASSERT_TRUE(
+      eventually([&] { return link.stats().reconnects >= 1 && link.ready() && link.stats().outbox_size == 0; }, 20s));
 
   mqtt_test_client fresh(broker.uri(), {"out/#", k_status_topic});
   EXPECT_TRUE(fresh.wait_for_payload("out/zone/a/state", "latest", 5s));

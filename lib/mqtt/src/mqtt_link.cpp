@@ -3,10 +3,10 @@
 #include <mqtt/async_client.h>
 
 #include <algorithm>
-#include <cstdint>
-#include <exception>
 #include <cmath>
 #include <condition_variable>
+#include <cstdint>
+#include <exception>
 #include <mutex>
 #include <thread>
 #include <unordered_map>
@@ -37,7 +37,9 @@ constexpr std::chrono::milliseconds k_tcp_probe_timeout{1000};
 bool starts_with(const std::string& s, const std::string& prefix) { return s.compare(0, prefix.size(), prefix) == 0; }
 
 void* to_context(std::uint64_t value) { return reinterpret_cast<void*>(static_cast<std::uintptr_t>(value)); }
-std::uint64_t from_context(void* context) { return static_cast<std::uint64_t>(reinterpret_cast<std::uintptr_t>(context)); }
+std::uint64_t from_context(void* context) {
+  return static_cast<std::uint64_t>(reinterpret_cast<std::uintptr_t>(context));
+}
 
 // Return codes after which the same message will never be accepted.
 bool is_permanent_publish_error(int rc) {
@@ -49,12 +51,23 @@ std::string describe(const ::mqtt::exception& e) {
   std::string text = e.what();
   // For MQTT 3.1.1 a refused CONNECT carries the CONNACK return code.
   switch (e.get_return_code()) {
-    case 1: text += " (broker: unacceptable protocol version)"; break;
-    case 2: text += " (broker: client identifier rejected)"; break;
-    case 3: text += " (broker: server unavailable)"; break;
-    case 4: text += " (broker: bad user name or password)"; break;
-    case 5: text += " (broker: not authorised)"; break;
-    default: break;
+    case 1:
+      text += " (broker: unacceptable protocol version)";
+      break;
+    case 2:
+      text += " (broker: client identifier rejected)";
+      break;
+    case 3:
+      text += " (broker: server unavailable)";
+      break;
+    case 4:
+      text += " (broker: bad user name or password)";
+      break;
+    case 5:
+      text += " (broker: not authorised)";
+      break;
+    default:
+      break;
   }
   return text;
 }
@@ -89,10 +102,9 @@ struct mqtt_link::impl {
         subscribe_listener_(
             [this](const ::mqtt::token& tok) { run_handler("subscribe", [&] { on_subscribe_success(tok); }); },
             [this](const ::mqtt::token& tok) { run_handler("subscribe failure", [&] { on_subscribe_failure(tok); }); }),
-        status_listener_([](const ::mqtt::token&) {},
-                         [this](const ::mqtt::token& tok) {
-                           run_handler("status failure", [&] { on_status_failure(tok); });
-                         }) {}
+        status_listener_(
+            [](const ::mqtt::token&) {},
+            [this](const ::mqtt::token& tok) { run_handler("status failure", [&] { on_status_failure(tok); }); }) {}
 
   impl(const impl&) = delete;
   impl& operator=(const impl&) = delete;
@@ -108,8 +120,7 @@ struct mqtt_link::impl {
     create.set_max_buffered_messages(static_cast<int>(options_.max_in_flight) + k_library_headroom);
     try {
       // No persistence object: Paho's file persistence would write into the working directory.
-      client_ = std::make_unique<::mqtt::async_client>(options_.broker.uri, options_.broker.client_id, create,
-                                                       nullptr);
+      client_ = std::make_unique<::mqtt::async_client>(options_.broker.uri, options_.broker.client_id, create, nullptr);
     } catch (const ::mqtt::exception& e) {
       return "broker.uri " + options_.broker.uri + ": the client library refused it: " + e.what();
     }
@@ -272,7 +283,8 @@ struct mqtt_link::impl {
     }
 
     if (client_ && client_->is_connected()) {
-      const auto left = std::chrono::duration_cast<std::chrono::milliseconds>(deadline - std::chrono::steady_clock::now());
+      const auto left =
+          std::chrono::duration_cast<std::chrono::milliseconds>(deadline - std::chrono::steady_clock::now());
       const auto disconnect_timeout = std::max(left, k_min_disconnect_timeout);
       try {
         if (!client_->disconnect(disconnect_timeout)->wait_for(disconnect_timeout + k_wait_slice)) {
@@ -307,9 +319,9 @@ struct mqtt_link::impl {
       session_ready_ = false;
     }
     if (was_running) {
-      report(undelivered == 0 ? link_report_level::info : link_report_level::warning,
-             "link to " + options_.broker.uri + " shut down, " + std::to_string(undelivered) +
-                 " message(s) undelivered");
+      report(
+          undelivered == 0 ? link_report_level::info : link_report_level::warning,
+          "link to " + options_.broker.uri + " shut down, " + std::to_string(undelivered) + " message(s) undelivered");
     }
   }
 
@@ -400,7 +412,7 @@ struct mqtt_link::impl {
     if (starts_with(options_.broker.uri, "ssl://")) {
       return " (the port accepts TCP, so the TLS handshake failed: the broker's certificate must chain to " +
              (options_.broker.tls && !options_.broker.tls->ca_file.empty() ? options_.broker.tls->ca_file
-                                                                             : std::string("the system's CAs")) +
+                                                                           : std::string("the system's CAs")) +
              " and name the host " + where->host + ")";
     }
     return {};
@@ -443,8 +455,8 @@ struct mqtt_link::impl {
           send_failure_reported_ = true;
         }
         if (first_in_connection) {
-          report(link_report_level::warning, "publish to " + e.message.topic + " not accepted, will retry: " +
-                                                 describe(ex));
+          report(link_report_level::warning,
+                 "publish to " + e.message.topic + " not accepted, will retry: " + describe(ex));
         }
         return;
       }
@@ -617,10 +629,9 @@ struct mqtt_link::impl {
       returned = box_.on_connection_lost();
     }
     changed_.notify_all();
-    report(link_report_level::warning, "connection to " + options_.broker.uri + " lost" +
-                                           (cause.empty() ? std::string{} : ": " + cause) + "; " +
-                                           std::to_string(returned) +
-                                           " unacknowledged message(s) will be sent again; reconnecting");
+    report(link_report_level::warning,
+           "connection to " + options_.broker.uri + " lost" + (cause.empty() ? std::string{} : ": " + cause) + "; " +
+               std::to_string(returned) + " unacknowledged message(s) will be sent again; reconnecting");
   }
 
   void on_delivery_success(const ::mqtt::token& tok) {
