@@ -98,7 +98,8 @@ TEST_F(MqttLink, ConnectsWhenBrokerAppearsLater) {
             "MQTT error [-1]: TCP/TLS connect failure (nothing accepts TCP connections at "
             "127.0.0.1:" +
                 std::to_string(broker.port()) + ")");
-  EXPECT_TRUE(log_->any_contains("connect to " + broker.uri() + " as link-late-broker failed"));
+  EXPECT_TRUE(
+      eventually([&] { return log_->any_contains("connect to " + broker.uri() + " as link-late-broker failed"); }, 2s));
 
   broker.start();
   ASSERT_TRUE(eventually([&] { return link.ready(); }, 15s)) << link.last_connect_error();
@@ -111,6 +112,31 @@ TEST_F(MqttLink, ConnectsWhenBrokerAppearsLater) {
   sensor.publish("in/zone-a/rh", "55");
   EXPECT_TRUE(receive_on(link, "in/zone-a/rh", 5s)) << "subscribed after the late first connect";
   link.shutdown(k_stopped, 5s);
+}
+
+// While the broker stays away, the link's own first-connect retries and the library's
+// automatic reconnect (which, measured, also retries a failed first connect) overlap.
+// They must end in one connection: two with the same client id would throw each other out.
+TEST_F(MqttLink, OverlappingFirstConnectRetriesEndInOneConnection) {
+  mosquitto_broker broker;  // not started yet
+  mqtt_link link = make_link(broker, "link-overlap");
+  link.start();
+  std::this_thread::sleep_for(7s);  // several attempts of both kinds
+  EXPECT_FALSE(link.connected());
+  broker.start();
+  ASSERT_TRUE(eventually([&] { return link.ready(); }, 15s)) << link.last_connect_error();
+  std::this_thread::sleep_for(5s);  // long enough for a second connection to show
+  const mqtt_link_stats s = link.stats();
+  EXPECT_EQ(s.connections, 1U);
+  EXPECT_EQ(s.connection_losses, 0U);
+  EXPECT_TRUE(link.ready());
+  link.shutdown(k_stopped, 5s);
+  const std::string log = broker.log_text();
+  std::size_t connects = 0;
+  for (auto at = log.find("as link-overlap"); at != std::string::npos; at = log.find("as link-overlap", at + 1)) {
+    ++connects;
+  }
+  EXPECT_EQ(connects, 1U) << log;
 }
 
 // Broker with persistence and a subscriber with a persistent session: every message the

@@ -3,6 +3,7 @@
 #include <gtest/gtest.h>
 #include <mqtt/async_client.h>
 
+#include "link_test_helpers.h"
 #include "mosquitto_fixture.h"
 #include "mqtt_test_client.h"
 
@@ -32,13 +33,14 @@ TEST(PahoClient, DestroyWithoutDisconnectSuppressesWill) {
   EXPECT_NE(broker.log_text().find("Client facts-destroy disconnected."), std::string::npos) << broker.log_text();
 }
 
-// Why the link retries its first connect itself.
-TEST(PahoClient, FirstConnectFailsWhileBrokerIsDown) {
-  mosquitto_broker broker;  // never started
-  ::mqtt::async_client client(broker.uri(), "facts-first", ::mqtt::create_options(MQTTVERSION_3_1_1), nullptr);
+// The first connect fails while the broker is down. Contrary to what was noted on an
+// earlier machine, automatic reconnect does retry it, but only about 4 s later (with 1-2 s
+// bounds, measured); without automatic reconnect it is never retried. The link retries
+// the first connect itself, on its own back-off.
+void connect_with_broker_down(mosquitto_broker& broker, ::mqtt::async_client& client, bool automatic_reconnect) {
   ::mqtt::connect_options options;
   options.set_mqtt_version(MQTTVERSION_3_1_1);
-  options.set_automatic_reconnect(1, 2);
+  if (automatic_reconnect) options.set_automatic_reconnect(1, 2);
   try {
     (void)client.connect(options)->wait_for(10s);
     ADD_FAILURE() << "connect succeeded with no broker";
@@ -46,8 +48,26 @@ TEST(PahoClient, FirstConnectFailsWhileBrokerIsDown) {
     EXPECT_EQ(e.get_return_code(), MQTTASYNC_FAILURE) << e.what();
   }
   broker.start();
-  std::this_thread::sleep_for(3s);  // longer than the reconnect bounds
-  EXPECT_FALSE(client.is_connected()) << "automatic reconnect does not cover a first connect that failed";
+}
+
+TEST(PahoClient, FailedFirstConnectIsNotRetriedWithoutAutomaticReconnect) {
+  mosquitto_broker broker;
+  ::mqtt::async_client client(broker.uri(), "facts-first", ::mqtt::create_options(MQTTVERSION_3_1_1), nullptr);
+  connect_with_broker_down(broker, client, false);
+  std::this_thread::sleep_for(3s);
+  EXPECT_FALSE(client.is_connected());
+}
+
+TEST(PahoClient, FailedFirstConnectIsRetriedLateWithAutomaticReconnect) {
+  mosquitto_broker broker;
+  ::mqtt::async_client client(broker.uri(), "facts-first-auto", ::mqtt::create_options(MQTTVERSION_3_1_1), nullptr);
+  const auto failed_at = std::chrono::steady_clock::now();
+  connect_with_broker_down(broker, client, true);
+  ASSERT_TRUE(test_support::eventually([&] { return client.is_connected(); }, 10s));
+  std::fprintf(
+      stderr, "measured: library retry connected %lld ms after the failed first connect\n",
+      static_cast<long long>(
+          std::chrono::duration_cast<std::chrono::milliseconds>(std::chrono::steady_clock::now() - failed_at).count()));
 }
 
 }  // namespace

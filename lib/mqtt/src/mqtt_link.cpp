@@ -356,10 +356,20 @@ struct mqtt_link::impl {
   }
 
   // Retries until the first connect succeeds (true) or the link is stopped (false). The
-  // library's automatic reconnect takes over after the first success.
+  // library's automatic reconnect also retries a failed first connect, later (measured:
+  // about 4 s); whichever gets there first wins, and the connected handler ends this loop.
   bool connect_first_time() {
     auto backoff = options_.reconnect_min;
     while (true) {
+      {
+        std::lock_guard<std::mutex> lock(mutex_);
+        if (stop_requested_) {
+          return false;
+        }
+        if (connections_ > 0) {
+          return true;  // the library's own retry connected meanwhile
+        }
+      }
       std::string failure;
       try {
         const ::mqtt::token_ptr tok = client_->connect(connect_options_);
@@ -382,6 +392,9 @@ struct mqtt_link::impl {
       }
       {
         std::lock_guard<std::mutex> lock(mutex_);
+        if (connections_ > 0) {
+          return true;  // this attempt lost the race against the library's own retry
+        }
         last_connect_error_ = failure;
       }
       report(link_report_level::warning, "connect to " + options_.broker.uri + " as " + options_.broker.client_id +
@@ -389,9 +402,7 @@ struct mqtt_link::impl {
                                              std::to_string(backoff.count()) + " s");
       {
         std::unique_lock<std::mutex> lock(mutex_);
-        if (changed_.wait_for(lock, backoff, [&] { return stop_requested_; })) {
-          return false;
-        }
+        changed_.wait_for(lock, backoff, [&] { return stop_requested_ || connections_ > 0; });
       }
       backoff = std::min(backoff * 2, options_.reconnect_max);
     }
@@ -409,13 +420,13 @@ struct mqtt_link::impl {
     if (!detail::tcp_port_accepts(*where, k_tcp_probe_timeout)) {
       return " (nothing accepts TCP connections at " + where->host + ":" + where->port + ")";
     }
-    if (starts_with(options_.broker.uri, "ssl://")) {
-      return " (the port accepts TCP, so the TLS handshake failed: the broker's certificate must chain to " +
-             (options_.broker.tls && !options_.broker.tls->ca_file.empty() ? options_.broker.tls->ca_file
-                                                                           : std::string("the system's CAs")) +
-             " and name the host " + where->host + ")";
+    if (!starts_with(options_.broker.uri, "ssl://")) {
+      return " (the port accepts TCP connections now)";
     }
-    return {};
+    return " (the port accepts TCP, so the TLS handshake failed: the broker's certificate must chain to " +
+           (options_.broker.tls && !options_.broker.tls->ca_file.empty() ? options_.broker.tls->ca_file
+                                                                         : std::string("the system's CAs")) +
+           " and name the host " + where->host + ")";
   }
 
   bool stopping() const {
@@ -545,6 +556,7 @@ struct mqtt_link::impl {
         }
       }
     }
+    changed_.notify_all();  // ends the sender's first-connect loop
     report(link_report_level::info,
            "connected to " + options_.broker.uri + " as " + options_.broker.client_id +
                (connection_number > 1 ? " (reconnect " + std::to_string(connection_number - 1) + ", " +
