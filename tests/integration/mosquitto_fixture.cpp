@@ -54,8 +54,9 @@ temp_dir::temp_dir(const std::string& prefix) {
   }
   path_ = pattern;
   // Readable for the broker once it has dropped root.
-  fs::permissions(path_, fs::perms::owner_all | fs::perms::group_read | fs::perms::group_exec |
-                             fs::perms::others_read | fs::perms::others_exec,
+  fs::permissions(path_,
+                  fs::perms::owner_all | fs::perms::group_read | fs::perms::group_exec | fs::perms::others_read |
+                      fs::perms::others_exec,
                   fs::perm_options::replace);
 }
 
@@ -97,8 +98,9 @@ tls_material make_test_pki(const fs::path& dir, const std::string& subject_alt_n
   m.server_cert = dir / "server.crt";
   const fs::path csr = dir / "server.csr";
   const fs::path ext = dir / "server.ext";
-  write_file(ext, "subjectAltName=" + subject_alt_name + "\nbasicConstraints=CA:FALSE\n"
-                  "keyUsage=digitalSignature,keyEncipherment\nextendedKeyUsage=serverAuth\n");
+  write_file(ext, "subjectAltName=" + subject_alt_name +
+                      "\nbasicConstraints=CA:FALSE\n"
+                      "keyUsage=digitalSignature,keyEncipherment\nextendedKeyUsage=serverAuth\n");
   run_checked({k_openssl, "req", "-x509", "-newkey", "rsa:2048", "-nodes", "-days", "1", "-subj",
                "/CN=dewmargin test CA", "-keyout", ca_key.string(), "-out", m.ca_cert.string()},
               k_tool_timeout, log);
@@ -122,9 +124,9 @@ mosquitto_broker::mosquitto_broker(broker_options options)
     tls_port_ = free_loopback_port();
     tls_ = make_test_pki(dir_.path(), options_.tls->subject_alt_name);
     tls_->password_file = dir_.path() / "passwords";
-    run_checked({k_mosquitto_passwd, "-c", "-b", tls_->password_file.string(), options_.tls->username,
-                 options_.tls->password},
-                k_tool_timeout, dir_.path() / "mosquitto_passwd.log");
+    run_checked(
+        {k_mosquitto_passwd, "-c", "-b", tls_->password_file.string(), options_.tls->username, options_.tls->password},
+        k_tool_timeout, dir_.path() / "mosquitto_passwd.log");
     make_world_readable(tls_->password_file);
   }
   if (options_.persistence) {
@@ -182,7 +184,8 @@ void mosquitto_broker::start() {
     const bool exited = !process_.running();
     (void)process_.kill_now();
     const std::string log = log_text();
-    if (exited && !ever_started_ && attempt < k_start_attempts && log.find("Address already in use") != std::string::npos) {
+    if (exited && !ever_started_ && attempt < k_start_attempts &&
+        log.find("Address already in use") != std::string::npos) {
       port_ = free_loopback_port();  // someone took the port meanwhile; a restart must keep it
       if (tls_) tls_port_ = free_loopback_port();
       continue;
