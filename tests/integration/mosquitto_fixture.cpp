@@ -1,5 +1,7 @@
 #include "mosquitto_fixture.h"
 
+#include <random>
+
 #include <arpa/inet.h>
 #include <netinet/in.h>
 #include <sys/socket.h>
@@ -65,19 +67,32 @@ temp_dir::~temp_dir() {
   fs::remove_all(path_, ec);
 }
 
-int free_loopback_port() {
+namespace {
+
+bool can_bind(int port) {
   const int fd = socket(AF_INET, SOCK_STREAM, 0);
-  if (fd < 0) throw std::runtime_error(std::string("socket: ") + std::strerror(errno));
-  sockaddr_in addr = loopback(0);
-  socklen_t len = sizeof addr;
-  if (bind(fd, reinterpret_cast<sockaddr*>(&addr), sizeof addr) != 0 ||
-      getsockname(fd, reinterpret_cast<sockaddr*>(&addr), &len) != 0) {
-    const std::string why = std::strerror(errno);
-    close(fd);
-    throw std::runtime_error("bind 127.0.0.1:0: " + why);
-  }
+  if (fd < 0) return false;
+  const sockaddr_in addr = loopback(port);
+  const bool ok = bind(fd, reinterpret_cast<const sockaddr*>(&addr), sizeof addr) == 0;
   close(fd);
-  return ntohs(addr.sin_port);
+  return ok;
+}
+
+}  // namespace
+
+// A random port below the kernel's ephemeral range (32768-60999 on Linux). Ports from
+// bind(0) come from that range, where the kernel soon hands the same port to another
+// test (or to a client's outgoing connection) while a broker is stopped for a restart:
+// a restarted broker must find its port still free.
+int free_loopback_port() {
+  std::random_device seed;
+  std::mt19937 pick(seed() ^ static_cast<unsigned>(getpid()));
+  std::uniform_int_distribution<int> port_in(20000, 32000);
+  for (int attempt = 0; attempt < 200; ++attempt) {
+    const int port = port_in(pick);
+    if (can_bind(port)) return port;
+  }
+  throw std::runtime_error("no free loopback port between 20000 and 32000");
 }
 
 bool port_accepts(int port) {

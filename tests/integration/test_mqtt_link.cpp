@@ -228,7 +228,9 @@ TEST_F(MqttLink, ResendsMessagesInFlightWhenTheBrokerDies) {
   EXPECT_TRUE(link.connected()) << "a hung broker is not noticed at once";
   broker.kill();
   ASSERT_TRUE(eventually([&] { return !link.connected(); }, 10s));
-  EXPECT_TRUE(log_->any_contains("30 unacknowledged message(s) will be sent again"));
+  // How many the loss handler counts depends on whether Paho reports a send failure for
+  // one of them first (seen under load); delivery of all 30 is what is asserted below.
+  EXPECT_TRUE(log_->any_contains("unacknowledged message(s) will be sent again"));
 
   broker.start();
   ASSERT_TRUE(collector.wait_for_count("out/events", 30, 30s)) << "got " << collector.messages_on("out/events").size();
