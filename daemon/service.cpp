@@ -65,6 +65,13 @@ class service {
     log_->info("dewmargind {} starting: site {}, {} zones, {} loops, broker {}", k_version, cfg.site,
                cfg.zones.size(), cfg.loops.size(), cfg.broker.uri);
 
+    auto link = mqtt_link::create(link_options(cfg));
+    if (!link) {
+      log_->error("{}", link.err().message);
+      return 1;
+    }
+    link_ = std::make_unique<mqtt_link>(std::move(link.value()));
+
     open_store();
     restored_state restored;
     if (store_) {
@@ -77,14 +84,6 @@ class service {
         log_->error("{}; starting without restored state", r.err().message);
       }
     }
-
-    auto link = mqtt_link::create(link_options(cfg));
-    if (!link) {
-      log_->error("{}", link.err().message);
-      if (store_) store_->stop();
-      return 1;
-    }
-    link_ = std::make_unique<mqtt_link>(std::move(link.value()));
 
     restored_ = std::move(restored);
     event_time_ = cfg.clock.source == clock_source::readings;

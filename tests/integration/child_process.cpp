@@ -1,10 +1,12 @@
 #include "child_process.h"
 
 #include <fcntl.h>
+#include <poll.h>
 #include <signal.h>
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <cerrno>
 #include <cstring>
 #include <fstream>
@@ -35,65 +37,117 @@ child_process child_process::spawn(const std::vector<std::string>& argv, const s
   if (argv.empty()) {
     throw std::runtime_error("child_process::spawn: empty argv");
   }
-  // Everything the child needs is prepared before fork: between fork and exec a
+  // Everything the children need is prepared before fork: between fork and exec a
   // multi-threaded parent's child may only make async-signal-safe calls.
   std::vector<char*> args;
   args.reserve(argv.size() + 1);
   for (const auto& a : argv) args.push_back(const_cast<char*>(a.c_str()));
   args.push_back(nullptr);
   const std::string out = output_file.string();
-  const long max_fd = std::min(sysconf(_SC_OPEN_MAX), 4096L);
+  const int max_fd = static_cast<int>(std::min(sysconf(_SC_OPEN_MAX), 4096L));
 
-  const pid_t pid = fork();
-  if (pid < 0) {
+  int lifeline[2];
+  int pid_pipe[2];
+  if (pipe2(lifeline, O_CLOEXEC) != 0 || pipe2(pid_pipe, O_CLOEXEC) != 0) {
+    throw std::runtime_error(std::string("pipe2 failed: ") + std::strerror(errno));
+  }
+
+  const pid_t watcher = fork();
+  if (watcher < 0) {
     throw std::runtime_error(std::string("fork failed: ") + std::strerror(errno));
   }
-  if (pid == 0) {
-    if (!out.empty()) {
-      const int fd = open(out.c_str(), O_WRONLY | O_CREAT | O_APPEND, 0644);
-      if (fd >= 0) {
-        dup2(fd, STDOUT_FILENO);
-        dup2(fd, STDERR_FILENO);
-      }
-    }
-    // No inherited sockets (a test's own broker connections) and default signals: Paho
-    // ignores SIGPIPE process-wide, and a blocked SIGTERM would make stop() escalate.
-    for (int fd = 3; fd < max_fd; ++fd) close(fd);
+  if (watcher == 0) {
+    // The watcher. Default signals and mask: Paho ignores SIGPIPE process-wide, and a
+    // blocked SIGTERM would make terminate() escalate; exec keeps both otherwise.
     sigset_t none;
     sigemptyset(&none);
     sigprocmask(SIG_SETMASK, &none, nullptr);
     signal(SIGPIPE, SIG_DFL);
     signal(SIGTERM, SIG_DFL);
     signal(SIGINT, SIG_DFL);
-    execv(args[0], args.data());
-    _exit(127);
+    const int watch_fd = lifeline[0];
+    const int report_fd = pid_pipe[1];
+    for (int fd = 3; fd < max_fd; ++fd) {
+      if (fd != watch_fd && fd != report_fd) close(fd);  // the test's sockets, the lifeline's write end
+    }
+    const pid_t program = fork();
+    if (program == 0) {
+      close(watch_fd);
+      close(report_fd);
+      if (!out.empty()) {
+        const int fd = open(out.c_str(), O_WRONLY | O_CREAT | O_APPEND, 0644);
+        if (fd >= 0) {
+          dup2(fd, STDOUT_FILENO);
+          dup2(fd, STDERR_FILENO);
+          close(fd);
+        }
+      }
+      execv(args[0], args.data());
+      _exit(127);
+    }
+    if (program < 0) _exit(126);
+    (void)!write(report_fd, &program, sizeof program);
+    close(report_fd);
+    while (true) {
+      int status = 0;
+      if (waitpid(program, &status, WNOHANG) == program) _exit(exit_code_of(status) & 0xff);
+      pollfd p{watch_fd, POLLIN, 0};
+      if (poll(&p, 1, 20) == 1) {  // EOF: the test process is gone
+        kill(program, SIGKILL);
+        waitpid(program, &status, 0);
+        _exit(128 + SIGKILL);
+      }
+    }
   }
-  return child_process(pid);
+
+  close(lifeline[0]);
+  close(pid_pipe[1]);
+  pid_t program = -1;
+  const ssize_t n = read(pid_pipe[0], &program, sizeof program);
+  close(pid_pipe[0]);
+  if (n != static_cast<ssize_t>(sizeof program) || program <= 0) {
+    close(lifeline[1]);
+    int status = 0;
+    waitpid(watcher, &status, 0);
+    throw std::runtime_error("could not start " + join(argv));
+  }
+  return child_process(program, watcher, lifeline[1]);
 }
 
-child_process::child_process(child_process&& other) noexcept : pid_(other.pid_), exit_code_(other.exit_code_) {
+child_process::child_process(child_process&& other) noexcept
+    : pid_(other.pid_), watcher_(other.watcher_), lifeline_(other.lifeline_), exit_code_(other.exit_code_) {
   other.pid_ = -1;
+  other.watcher_ = -1;
+  other.lifeline_ = -1;
 }
 
 child_process& child_process::operator=(child_process&& other) noexcept {
   if (this != &other) {
-    if (pid_ > 0 && !exit_code_) (void)kill_now();
+    release();
     pid_ = other.pid_;
+    watcher_ = other.watcher_;
+    lifeline_ = other.lifeline_;
     exit_code_ = other.exit_code_;
     other.pid_ = -1;
+    other.watcher_ = -1;
+    other.lifeline_ = -1;
   }
   return *this;
 }
 
-child_process::~child_process() {
-  if (pid_ > 0 && !exit_code_) (void)kill_now();
+child_process::~child_process() { release(); }
+
+void child_process::release() {
+  if (watcher_ > 0 && !exit_code_) (void)kill_now();
+  if (lifeline_ >= 0) close(lifeline_);
+  lifeline_ = -1;
 }
 
 bool child_process::running() {
-  if (pid_ <= 0 || exit_code_) return false;
+  if (watcher_ <= 0 || exit_code_) return false;
   int status = 0;
-  const pid_t r = waitpid(pid_, &status, WNOHANG);
-  if (r == pid_) {
+  const pid_t r = waitpid(watcher_, &status, WNOHANG);
+  if (r == watcher_) {
     exit_code_ = exit_code_of(status);
     return false;
   }
@@ -120,7 +174,7 @@ int child_process::kill_now() {
   if (!running()) return exit_code_.value_or(-1);
   ::kill(pid_, SIGKILL);
   int status = 0;
-  while (waitpid(pid_, &status, 0) < 0 && errno == EINTR) {
+  while (waitpid(watcher_, &status, 0) < 0 && errno == EINTR) {
   }
   exit_code_ = exit_code_of(status);
   return *exit_code_;

@@ -1,6 +1,13 @@
 #pragma once
 // A child process started by fork/exec and stopped by its PID, for integration tests
 // (the broker, openssl, a service that must be killed). Every wait is bounded.
+//
+// It never outlives the test process, even one that aborts or that ctest kills at its
+// timeout: a small watcher process sits between the test and the program, holding the
+// read end of a pipe whose write end only the test holds. When that end closes, the
+// watcher kills the program. (PR_SET_PDEATHSIG would not do: mosquitto started as root
+// changes its user, which clears it.) Signals go to the program's own PID; the watcher
+// exits with the program's status.
 #include <sys/types.h>
 
 #include <chrono>
@@ -39,8 +46,11 @@ class child_process {
   bool send_signal(int signal_number);
 
  private:
-  explicit child_process(pid_t pid) : pid_(pid) {}
-  pid_t pid_ = -1;
+  child_process(pid_t pid, pid_t watcher, int lifeline) : pid_(pid), watcher_(watcher), lifeline_(lifeline) {}
+  void release();
+  pid_t pid_ = -1;      // the program: signals go here
+  pid_t watcher_ = -1;  // our child: waited for
+  int lifeline_ = -1;   // write end of the pipe the watcher watches
   std::optional<int> exit_code_;
 };
 

@@ -28,9 +28,10 @@ bool eventually(Condition condition, std::chrono::milliseconds timeout) {
 class report_log {
  public:
   void add(link_report_level level, const std::string& text) {
-    std::fprintf(stderr, "[link %s] %s\n", level == link_report_level::info      ? "info"
-                                           : level == link_report_level::warning ? "warn"
-                                                                                 : "error",
+    std::fprintf(stderr, "[link %s] %s\n",
+                 level == link_report_level::info      ? "info"
+                 : level == link_report_level::warning ? "warn"
+                                                       : "error",
                  text.c_str());
     std::lock_guard<std::mutex> lock(mutex_);
     lines_.push_back(text);

@@ -1,5 +1,7 @@
 #include "mosquitto_fixture.h"
 
+#include <random>
+
 #include <arpa/inet.h>
 #include <netinet/in.h>
 #include <sys/socket.h>
@@ -54,8 +56,9 @@ temp_dir::temp_dir(const std::string& prefix) {
   }
   path_ = pattern;
   // Readable for the broker once it has dropped root.
-  fs::permissions(path_, fs::perms::owner_all | fs::perms::group_read | fs::perms::group_exec |
-                             fs::perms::others_read | fs::perms::others_exec,
+  fs::permissions(path_,
+                  fs::perms::owner_all | fs::perms::group_read | fs::perms::group_exec | fs::perms::others_read |
+                      fs::perms::others_exec,
                   fs::perm_options::replace);
 }
 
@@ -64,19 +67,32 @@ temp_dir::~temp_dir() {
   fs::remove_all(path_, ec);
 }
 
-int free_loopback_port() {
+namespace {
+
+bool can_bind(int port) {
   const int fd = socket(AF_INET, SOCK_STREAM, 0);
-  if (fd < 0) throw std::runtime_error(std::string("socket: ") + std::strerror(errno));
-  sockaddr_in addr = loopback(0);
-  socklen_t len = sizeof addr;
-  if (bind(fd, reinterpret_cast<sockaddr*>(&addr), sizeof addr) != 0 ||
-      getsockname(fd, reinterpret_cast<sockaddr*>(&addr), &len) != 0) {
-    const std::string why = std::strerror(errno);
-    close(fd);
-    throw std::runtime_error("bind 127.0.0.1:0: " + why);
-  }
+  if (fd < 0) return false;
+  const sockaddr_in addr = loopback(port);
+  const bool ok = bind(fd, reinterpret_cast<const sockaddr*>(&addr), sizeof addr) == 0;
   close(fd);
-  return ntohs(addr.sin_port);
+  return ok;
+}
+
+}  // namespace
+
+// A random port below the kernel's ephemeral range (32768-60999 on Linux). Ports from
+// bind(0) come from that range, where the kernel soon hands the same port to another
+// test (or to a client's outgoing connection) while a broker is stopped for a restart:
+// a restarted broker must find its port still free.
+int free_loopback_port() {
+  std::random_device seed;
+  std::mt19937 pick(seed() ^ static_cast<unsigned>(getpid()));
+  std::uniform_int_distribution<int> port_in(20000, 32000);
+  for (int attempt = 0; attempt < 200; ++attempt) {
+    const int port = port_in(pick);
+    if (can_bind(port)) return port;
+  }
+  throw std::runtime_error("no free loopback port between 20000 and 32000");
 }
 
 bool port_accepts(int port) {
@@ -97,8 +113,9 @@ tls_material make_test_pki(const fs::path& dir, const std::string& subject_alt_n
   m.server_cert = dir / "server.crt";
   const fs::path csr = dir / "server.csr";
   const fs::path ext = dir / "server.ext";
-  write_file(ext, "subjectAltName=" + subject_alt_name + "\nbasicConstraints=CA:FALSE\n"
-                  "keyUsage=digitalSignature,keyEncipherment\nextendedKeyUsage=serverAuth\n");
+  write_file(ext, "subjectAltName=" + subject_alt_name +
+                      "\nbasicConstraints=CA:FALSE\n"
+                      "keyUsage=digitalSignature,keyEncipherment\nextendedKeyUsage=serverAuth\n");
   run_checked({k_openssl, "req", "-x509", "-newkey", "rsa:2048", "-nodes", "-days", "1", "-subj",
                "/CN=dewmargin test CA", "-keyout", ca_key.string(), "-out", m.ca_cert.string()},
               k_tool_timeout, log);
@@ -122,9 +139,9 @@ mosquitto_broker::mosquitto_broker(broker_options options)
     tls_port_ = free_loopback_port();
     tls_ = make_test_pki(dir_.path(), options_.tls->subject_alt_name);
     tls_->password_file = dir_.path() / "passwords";
-    run_checked({k_mosquitto_passwd, "-c", "-b", tls_->password_file.string(), options_.tls->username,
-                 options_.tls->password},
-                k_tool_timeout, dir_.path() / "mosquitto_passwd.log");
+    run_checked(
+        {k_mosquitto_passwd, "-c", "-b", tls_->password_file.string(), options_.tls->username, options_.tls->password},
+        k_tool_timeout, dir_.path() / "mosquitto_passwd.log");
     make_world_readable(tls_->password_file);
   }
   if (options_.persistence) {
@@ -182,7 +199,8 @@ void mosquitto_broker::start() {
     const bool exited = !process_.running();
     (void)process_.kill_now();
     const std::string log = log_text();
-    if (exited && !ever_started_ && attempt < k_start_attempts && log.find("Address already in use") != std::string::npos) {
+    if (exited && !ever_started_ && attempt < k_start_attempts &&
+        log.find("Address already in use") != std::string::npos) {
       port_ = free_loopback_port();  // someone took the port meanwhile; a restart must keep it
       if (tls_) tls_port_ = free_loopback_port();
       continue;

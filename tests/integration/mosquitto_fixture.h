@@ -37,14 +37,14 @@ struct broker_tls_options {
 };
 
 struct broker_options {
-  bool persistence = false;                 // keep sessions and retained messages over a restart
-                                            // (saved on stop() and every second, so also over kill())
-  std::optional<broker_tls_options> tls;    // adds the TLS listener (password required there)
-  std::vector<std::string> extra_config;    // lines appended to the config
+  bool persistence = false;               // keep sessions and retained messages over a restart
+                                          // (saved on stop() and every second, so also over kill())
+  std::optional<broker_tls_options> tls;  // adds the TLS listener (password required there)
+  std::vector<std::string> extra_config;  // lines appended to the config
 };
 
 struct tls_material {
-  std::filesystem::path ca_cert;      // trust this to verify the broker
+  std::filesystem::path ca_cert;  // trust this to verify the broker
   std::filesystem::path server_cert;
   std::filesystem::path server_key;
   std::filesystem::path password_file;  // the broker's (mosquitto_passwd format)

@@ -63,8 +63,9 @@ mqtt_test_client::mqtt_test_client(const std::string& uri, std::vector<std::stri
     if (!client_->connect(opts)->wait_for(k_connect_timeout)) {
       throw std::runtime_error("test client " + id + ": no connect within 10 s to " + uri);
     }
-    if (!filters_.empty() && !client_->subscribe(::mqtt::string_collection::create(filters_),
-                                                 ::mqtt::iasync_client::qos_collection(filters_.size(), 1))
+    if (!filters_.empty() && !client_
+                                  ->subscribe(::mqtt::string_collection::create(filters_),
+                                              ::mqtt::iasync_client::qos_collection(filters_.size(), 1))
                                   ->wait_for(k_connect_timeout)) {
       throw std::runtime_error("test client " + id + ": no subscribe acknowledgement within 10 s");
     }
@@ -82,7 +83,7 @@ mqtt_test_client::~mqtt_test_client() {
 }
 
 std::optional<received_message> mqtt_test_client::wait_for(const std::string& topic, const predicate& accept,
-                                                            std::chrono::milliseconds timeout, std::size_t from) {
+                                                           std::chrono::milliseconds timeout, std::size_t from) {
   const auto deadline = std::chrono::steady_clock::now() + timeout;
   std::unique_lock<std::mutex> lock(mutex_);
   std::size_t next = from;
@@ -99,11 +100,11 @@ std::optional<received_message> mqtt_test_client::wait_for(const std::string& to
   }
 }
 
-std::optional<received_message> mqtt_test_client::wait_for_payload(const std::string& topic,
-                                                                    const std::string& payload,
-                                                                    std::chrono::milliseconds timeout,
-                                                                    std::size_t from) {
-  return wait_for(topic, [&](const received_message& m) { return m.payload == payload; }, timeout, from);
+std::optional<received_message> mqtt_test_client::wait_for_payload(const std::string& topic, const std::string& payload,
+                                                                   std::chrono::milliseconds timeout,
+                                                                   std::size_t from) {
+  return wait_for(
+      topic, [&](const received_message& m) { return m.payload == payload; }, timeout, from);
 }
 
 bool mqtt_test_client::wait_for_count(const std::string& topic, std::size_t n, std::chrono::milliseconds timeout) {

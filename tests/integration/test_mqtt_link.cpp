@@ -94,9 +94,12 @@ TEST_F(MqttLink, ConnectsWhenBrokerAppearsLater) {
   link.publish(test_support::state_message("out/zone/a/state", "queued-before-connect"));
   ASSERT_TRUE(eventually([&] { return !link.last_connect_error().empty(); }, 5s));
   EXPECT_FALSE(link.connected());
-  EXPECT_EQ(link.last_connect_error(), "MQTT error [-1]: TCP/TLS connect failure (nothing accepts TCP connections at "
-                                       "127.0.0.1:" + std::to_string(broker.port()) + ")");
-  EXPECT_TRUE(log_->any_contains("connect to " + broker.uri() + " as link-late-broker failed"));
+  EXPECT_EQ(link.last_connect_error(),
+            "MQTT error [-1]: TCP/TLS connect failure (nothing accepts TCP connections at "
+            "127.0.0.1:" +
+                std::to_string(broker.port()) + ")");
+  EXPECT_TRUE(
+      eventually([&] { return log_->any_contains("connect to " + broker.uri() + " as link-late-broker failed"); }, 2s));
 
   broker.start();
   ASSERT_TRUE(eventually([&] { return link.ready(); }, 15s)) << link.last_connect_error();
@@ -109,6 +112,31 @@ TEST_F(MqttLink, ConnectsWhenBrokerAppearsLater) {
   sensor.publish("in/zone-a/rh", "55");
   EXPECT_TRUE(receive_on(link, "in/zone-a/rh", 5s)) << "subscribed after the late first connect";
   link.shutdown(k_stopped, 5s);
+}
+
+// While the broker stays away, the link's own first-connect retries and the library's
+// automatic reconnect (which, measured, also retries a failed first connect) overlap.
+// They must end in one connection: two with the same client id would throw each other out.
+TEST_F(MqttLink, OverlappingFirstConnectRetriesEndInOneConnection) {
+  mosquitto_broker broker;  // not started yet
+  mqtt_link link = make_link(broker, "link-overlap");
+  link.start();
+  std::this_thread::sleep_for(7s);  // several attempts of both kinds
+  EXPECT_FALSE(link.connected());
+  broker.start();
+  ASSERT_TRUE(eventually([&] { return link.ready(); }, 15s)) << link.last_connect_error();
+  std::this_thread::sleep_for(5s);  // long enough for a second connection to show
+  const mqtt_link_stats s = link.stats();
+  EXPECT_EQ(s.connections, 1U);
+  EXPECT_EQ(s.connection_losses, 0U);
+  EXPECT_TRUE(link.ready());
+  link.shutdown(k_stopped, 5s);
+  const std::string log = broker.log_text();
+  std::size_t connects = 0;
+  for (auto at = log.find("as link-overlap"); at != std::string::npos; at = log.find("as link-overlap", at + 1)) {
+    ++connects;
+  }
+  EXPECT_EQ(connects, 1U) << log;
 }
 
 // Broker with persistence and a subscriber with a persistent session: every message the
@@ -200,11 +228,12 @@ TEST_F(MqttLink, ResendsMessagesInFlightWhenTheBrokerDies) {
   EXPECT_TRUE(link.connected()) << "a hung broker is not noticed at once";
   broker.kill();
   ASSERT_TRUE(eventually([&] { return !link.connected(); }, 10s));
-  EXPECT_TRUE(log_->any_contains("30 unacknowledged message(s) will be sent again"));
+  // How many the loss handler counts depends on whether Paho reports a send failure for
+  // one of them first (seen under load); delivery of all 30 is what is asserted below.
+  EXPECT_TRUE(log_->any_contains("unacknowledged message(s) will be sent again"));
 
   broker.start();
-  ASSERT_TRUE(collector.wait_for_count("out/events", 30, 30s))
-      << "got " << collector.messages_on("out/events").size();
+  ASSERT_TRUE(collector.wait_for_count("out/events", 30, 30s)) << "got " << collector.messages_on("out/events").size();
   std::vector<std::string> first_seen;
   std::set<std::string> seen;
   for (const auto& m : collector.messages_on("out/events")) {
@@ -215,8 +244,7 @@ TEST_F(MqttLink, ResendsMessagesInFlightWhenTheBrokerDies) {
   EXPECT_EQ(first_seen, expected);
   ASSERT_TRUE(eventually([&] { return link.stats().outbox_size == 0; }, 10s));
   std::fprintf(stderr, "measured: %zu copies of 30 events after the hang; published %llu\n",
-               collector.messages_on("out/events").size(),
-               static_cast<unsigned long long>(link.stats().published));
+               collector.messages_on("out/events").size(), static_cast<unsigned long long>(link.stats().published));
   link.shutdown(k_stopped, 5s);
 }
 
@@ -239,8 +267,8 @@ TEST_F(MqttLink, RepublishesRetainedStatesAfterBrokerLostThem) {
     mqtt_test_client empty(broker.uri(), {"out/#"});
     EXPECT_FALSE(empty.wait_for_payload("out/zone/a/state", "latest", 200ms)) << "the broker really forgot";
   }
-  ASSERT_TRUE(eventually([&] { return link.stats().reconnects >= 1 && link.ready() && link.stats().outbox_size == 0; },
-                         20s));
+  ASSERT_TRUE(
+      eventually([&] { return link.stats().reconnects >= 1 && link.ready() && link.stats().outbox_size == 0; }, 20s));
 
   mqtt_test_client fresh(broker.uri(), {"out/#", k_status_topic});
   EXPECT_TRUE(fresh.wait_for_payload("out/zone/a/state", "latest", 5s));

@@ -1,9 +1,9 @@
-#include "dewmargin/inbound_queue.h"
-
 #include <gtest/gtest.h>
 
 #include <string>
 #include <vector>
+
+#include "dewmargin/inbound_queue.h"
 
 namespace dewmargin {
 namespace {

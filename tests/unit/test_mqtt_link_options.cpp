@@ -85,7 +85,9 @@ TEST_F(MqttLinkCreate, RejectsBadOptionsNamingTheField) {
       {"no host", [](mqtt_link_options& o, const fs::path&) { o.broker.uri = "tcp://"; },
        [](const fs::path&) { return std::string("broker.uri \"tcp://\": names no host"); }},
       {"tls over tcp",
-       [](mqtt_link_options& o, const fs::path& d) { o.broker.tls = tls_config{(d / "ca.crt").string(), "", ""}; },
+       [](mqtt_link_options& o, const fs::path& d) {
+         o.broker.tls = tls_config{(d / "ca.crt").string(), "", ""};
+       },
        [](const fs::path&) {
          return std::string("broker.tls is set but broker.uri tcp://127.0.0.1:1883 is plain tcp://: use ssl://");
        }},
@@ -107,8 +109,7 @@ TEST_F(MqttLinkCreate, RejectsBadOptionsNamingTheField) {
        [](const fs::path&) { return std::string("broker.keepalive_s 0.000000: must lie in 1 ... 65535 s"); }},
       {"wildcard status topic", [](mqtt_link_options& o, const fs::path&) { o.status_topic = "dewmargin/#"; },
        [](const fs::path&) {
-         return std::string(
-             "status topic \"dewmargin/#\": a wildcard (+ or #) is not allowed in a publish topic");
+         return std::string("status topic \"dewmargin/#\": a wildcard (+ or #) is not allowed in a publish topic");
        }},
       {"empty subscription", [](mqtt_link_options& o, const fs::path&) { o.subscriptions.emplace_back(); },
        [](const fs::path&) { return std::string("an empty subscription topic filter"); }},

@@ -1,10 +1,10 @@
-#include "dewmargin/outbox.h"
-
 #include <gtest/gtest.h>
 
 #include <ostream>
 #include <string>
 #include <vector>
+
+#include "dewmargin/outbox.h"
 
 namespace dewmargin {
 namespace {
@@ -49,11 +49,20 @@ void PrintTo(const outbox_case& c, std::ostream* os) { *os << c.name; }
 outbound_message parse_message(const std::string& text) {
   outbound_message m;
   switch (text.at(0)) {
-    case 'a': m.cls = message_class::alarm_event; break;
-    case 'e': m.cls = message_class::event; break;
-    case 's': m.cls = message_class::state; break;
-    case 'c': m.cls = message_class::command; break;
-    default: ADD_FAILURE() << "bad class in " << text;
+    case 'a':
+      m.cls = message_class::alarm_event;
+      break;
+    case 'e':
+      m.cls = message_class::event;
+      break;
+    case 's':
+      m.cls = message_class::state;
+      break;
+    case 'c':
+      m.cls = message_class::command;
+      break;
+    default:
+      ADD_FAILURE() << "bad class in " << text;
   }
   const auto eq = text.find('=');
   m.topic = text.substr(2, eq - 2);
@@ -78,8 +87,12 @@ TEST_P(OutboxScript, EndsInExpectedState) {
   std::vector<std::optional<outbox_id>> ids;
   for (const op& o : c.script) {
     switch (o.kind) {
-      case op_kind::push: ids.push_back(box.push(parse_message(o.message))); break;
-      case op_kind::take: (void)box.take_next_to_send(o.n); break;
+      case op_kind::push:
+        ids.push_back(box.push(parse_message(o.message)));
+        break;
+      case op_kind::take:
+        (void)box.take_next_to_send(o.n);
+        break;
       case op_kind::deliver:
         ASSERT_TRUE(ids.at(o.n).has_value()) << "push " << o.n << " was dropped";
         (void)box.on_delivered(*ids.at(o.n));
@@ -88,7 +101,9 @@ TEST_P(OutboxScript, EndsInExpectedState) {
         ASSERT_TRUE(ids.at(o.n).has_value()) << "push " << o.n << " was dropped";
         (void)box.on_send_failed(*ids.at(o.n));
         break;
-      case op_kind::lost: (void)box.on_connection_lost(); break;
+      case op_kind::lost:
+        (void)box.on_connection_lost();
+        break;
     }
   }
   EXPECT_EQ(describe(box.pending_entries()), c.pending);

@@ -1,10 +1,10 @@
-#include "dewmargin/secret_file.h"
-
 #include <gtest/gtest.h>
 #include <unistd.h>
 
 #include <filesystem>
 #include <fstream>
+
+#include "dewmargin/secret_file.h"
 
 namespace dewmargin {
 namespace {

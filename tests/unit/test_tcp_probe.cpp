@@ -1,6 +1,6 @@
-#include "tcp_probe.h"
-
 #include <gtest/gtest.h>
+
+#include "tcp_probe.h"
 
 namespace dewmargin::detail {
 namespace {

@@ -242,7 +242,7 @@ struct engine::state {
     emit_event(out, now, st, id, "input", e, false);
   }
 
-  void emit_zone_snapshot(engine_output& out, const zone_rt& z, timestamp now) {
+  static zone_snapshot snapshot_of(const zone_rt& z, timestamp now) {
     zone_snapshot snap;
     snap.zone = z.cfg->id;
     snap.band = band_name(z.bands.current());
@@ -251,7 +251,11 @@ struct engine::state {
     snap.shelved_until = z.alarm.status().shelved_until;
     snap.valve = z.valve ? valve_position_name(z.valve->position()) : "";
     snap.ts = now;
-    out.zone_snapshots.push_back(std::move(snap));
+    return snap;
+  }
+
+  void emit_zone_snapshot(engine_output& out, const zone_rt& z, timestamp now) {
+    out.zone_snapshots.push_back(snapshot_of(z, now));
   }
 
   change_gate<7>::values zone_values(const zone_rt& z, std::optional<double> minutes) const {
@@ -855,17 +859,7 @@ const engine_counters& engine::counters() const { return s_->counters; }
 
 restored_state engine::snapshot() const {
   restored_state r;
-  for (const zone_rt& z : s_->zones) {
-    zone_snapshot snap;
-    snap.zone = z.cfg->id;
-    snap.band = band_name(z.bands.current());
-    snap.alarm_active = z.alarm.status().active;
-    snap.acknowledged = z.alarm.status().acknowledged;
-    snap.shelved_until = z.alarm.status().shelved_until;
-    snap.valve = z.valve ? valve_position_name(z.valve->position()) : "";
-    snap.ts = s_->last_now;
-    r.zones.push_back(std::move(snap));
-  }
+  for (const zone_rt& z : s_->zones) r.zones.push_back(state::snapshot_of(z, s_->last_now));
   for (const loop_rt& l : s_->loops) r.loops.push_back({l.cfg->id, l.reset.setpoint_c(), s_->last_now});
   return r;
 }

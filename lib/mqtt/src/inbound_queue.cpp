@@ -41,8 +41,7 @@ bool inbound_queue::pop(inbound_message& out, std::chrono::milliseconds timeout)
   if (!not_empty_.wait_for(lock, timeout, [&] { return size_locked() > 0; })) {
     return false;
   }
-  const bool from_kept =
-      droppable_.empty() || (!kept_.empty() && kept_.front().seq < droppable_.front().seq);
+  const bool from_kept = droppable_.empty() || (!kept_.empty() && kept_.front().seq < droppable_.front().seq);
   auto& lane = from_kept ? kept_ : droppable_;
   out = std::move(lane.front().message);
   lane.pop_front();

@@ -3,18 +3,17 @@
 #include <mqtt/async_client.h>
 
 #include <algorithm>
-#include <cerrno>
 #include <cmath>
 #include <condition_variable>
-#include <cstdio>
-#include <cstring>
+#include <cstdint>
+#include <exception>
 #include <mutex>
-#include <optional>
 #include <thread>
 #include <unordered_map>
 #include <utility>
 
 #include "dewmargin/secret_file.h"
+#include "link_options_check.h"
 #include "tcp_probe.h"
 
 namespace dewmargin {
@@ -37,30 +36,10 @@ constexpr std::chrono::milliseconds k_tcp_probe_timeout{1000};
 
 bool starts_with(const std::string& s, const std::string& prefix) { return s.compare(0, prefix.size(), prefix) == 0; }
 
-// A reason why a topic cannot be published to, or empty.
-std::string invalid_publish_topic(const std::string& topic) {
-  if (topic.empty()) {
-    return "the topic is empty";
-  }
-  if (topic.find_first_of("+#") != std::string::npos) {
-    return "a wildcard (+ or #) is not allowed in a publish topic";
-  }
-  if (topic.find('\0') != std::string::npos) {
-    return "the topic holds a NUL character";
-  }
-  return {};
-}
-
-std::string check_readable(const std::string& field, const std::string& path) {
-  const std::unique_ptr<std::FILE, int (*)(std::FILE*)> f(std::fopen(path.c_str(), "rb"), &std::fclose);
-  if (!f) {
-    return field + " " + path + ": cannot read: " + std::strerror(errno);
-  }
-  return {};
-}
-
 void* to_context(std::uint64_t value) { return reinterpret_cast<void*>(static_cast<std::uintptr_t>(value)); }
-std::uint64_t from_context(void* context) { return static_cast<std::uint64_t>(reinterpret_cast<std::uintptr_t>(context)); }
+std::uint64_t from_context(void* context) {
+  return static_cast<std::uint64_t>(reinterpret_cast<std::uintptr_t>(context));
+}
 
 // Return codes after which the same message will never be accepted.
 bool is_permanent_publish_error(int rc) {
@@ -72,12 +51,23 @@ std::string describe(const ::mqtt::exception& e) {
   std::string text = e.what();
   // For MQTT 3.1.1 a refused CONNECT carries the CONNACK return code.
   switch (e.get_return_code()) {
-    case 1: text += " (broker: unacceptable protocol version)"; break;
-    case 2: text += " (broker: client identifier rejected)"; break;
-    case 3: text += " (broker: server unavailable)"; break;
-    case 4: text += " (broker: bad user name or password)"; break;
-    case 5: text += " (broker: not authorised)"; break;
-    default: break;
+    case 1:
+      text += " (broker: unacceptable protocol version)";
+      break;
+    case 2:
+      text += " (broker: client identifier rejected)";
+      break;
+    case 3:
+      text += " (broker: server unavailable)";
+      break;
+    case 4:
+      text += " (broker: bad user name or password)";
+      break;
+    case 5:
+      text += " (broker: not authorised)";
+      break;
+    default:
+      break;
   }
   return text;
 }
@@ -106,12 +96,15 @@ struct mqtt_link::impl {
       : options_(std::move(options)),
         box_(options_.outbox_capacity),
         inbound_(options_.inbound_capacity, options_.must_keep_prefixes),
-        delivery_listener_([this](const ::mqtt::token& tok) { on_delivery_success(tok); },
-                           [this](const ::mqtt::token& tok) { on_delivery_failure(tok); }),
-        subscribe_listener_([this](const ::mqtt::token& tok) { on_subscribe_success(tok); },
-                            [this](const ::mqtt::token& tok) { on_subscribe_failure(tok); }),
-        status_listener_([](const ::mqtt::token&) {},
-                         [this](const ::mqtt::token& tok) { on_status_failure(tok); }) {}
+        delivery_listener_(
+            [this](const ::mqtt::token& tok) { run_handler("delivery", [&] { on_delivery_success(tok); }); },
+            [this](const ::mqtt::token& tok) { run_handler("delivery failure", [&] { on_delivery_failure(tok); }); }),
+        subscribe_listener_(
+            [this](const ::mqtt::token& tok) { run_handler("subscribe", [&] { on_subscribe_success(tok); }); },
+            [this](const ::mqtt::token& tok) { run_handler("subscribe failure", [&] { on_subscribe_failure(tok); }); }),
+        status_listener_(
+            [](const ::mqtt::token&) {},
+            [this](const ::mqtt::token& tok) { run_handler("status failure", [&] { on_status_failure(tok); }); }) {}
 
   impl(const impl&) = delete;
   impl& operator=(const impl&) = delete;
@@ -127,8 +120,7 @@ struct mqtt_link::impl {
     create.set_max_buffered_messages(static_cast<int>(options_.max_in_flight) + k_library_headroom);
     try {
       // No persistence object: Paho's file persistence would write into the working directory.
-      client_ = std::make_unique<::mqtt::async_client>(options_.broker.uri, options_.broker.client_id, create,
-                                                       nullptr);
+      client_ = std::make_unique<::mqtt::async_client>(options_.broker.uri, options_.broker.client_id, create, nullptr);
     } catch (const ::mqtt::exception& e) {
       return "broker.uri " + options_.broker.uri + ": the client library refused it: " + e.what();
     }
@@ -165,9 +157,12 @@ struct mqtt_link::impl {
       connect_options_.set_ssl(std::move(ssl));
     }
 
-    client_->set_message_callback([this](::mqtt::const_message_ptr m) { on_message(m); });
-    client_->set_connected_handler([this](const std::string& cause) { on_connected(cause); });
-    client_->set_connection_lost_handler([this](const std::string& cause) { on_connection_lost(cause); });
+    client_->set_message_callback(
+        [this](::mqtt::const_message_ptr m) { run_handler("message", [&] { on_message(m); }); });
+    client_->set_connected_handler(
+        [this](const std::string& cause) { run_handler("connected", [&] { on_connected(cause); }); });
+    client_->set_connection_lost_handler(
+        [this](const std::string& cause) { run_handler("connection lost", [&] { on_connection_lost(cause); }); });
     return {};
   }
 
@@ -185,7 +180,7 @@ struct mqtt_link::impl {
   }
 
   void publish(outbound_message message) {
-    if (const std::string why = invalid_publish_topic(message.topic); !why.empty()) {
+    if (const std::string why = detail::invalid_publish_topic(message.topic); !why.empty()) {
       {
         std::lock_guard<std::mutex> lock(mutex_);
         ++rejected_;
@@ -288,7 +283,8 @@ struct mqtt_link::impl {
     }
 
     if (client_ && client_->is_connected()) {
-      const auto left = std::chrono::duration_cast<std::chrono::milliseconds>(deadline - std::chrono::steady_clock::now());
+      const auto left =
+          std::chrono::duration_cast<std::chrono::milliseconds>(deadline - std::chrono::steady_clock::now());
       const auto disconnect_timeout = std::max(left, k_min_disconnect_timeout);
       try {
         if (!client_->disconnect(disconnect_timeout)->wait_for(disconnect_timeout + k_wait_slice)) {
@@ -323,9 +319,9 @@ struct mqtt_link::impl {
       session_ready_ = false;
     }
     if (was_running) {
-      report(undelivered == 0 ? link_report_level::info : link_report_level::warning,
-             "link to " + options_.broker.uri + " shut down, " + std::to_string(undelivered) +
-                 " message(s) undelivered");
+      report(
+          undelivered == 0 ? link_report_level::info : link_report_level::warning,
+          "link to " + options_.broker.uri + " shut down, " + std::to_string(undelivered) + " message(s) undelivered");
     }
   }
 
@@ -360,10 +356,20 @@ struct mqtt_link::impl {
   }
 
   // Retries until the first connect succeeds (true) or the link is stopped (false). The
-  // library's automatic reconnect takes over after the first success.
+  // library's automatic reconnect also retries a failed first connect, later (measured:
+  // about 4 s); whichever gets there first wins, and the connected handler ends this loop.
   bool connect_first_time() {
     auto backoff = options_.reconnect_min;
     while (true) {
+      {
+        std::lock_guard<std::mutex> lock(mutex_);
+        if (stop_requested_) {
+          return false;
+        }
+        if (connections_ > 0) {
+          return true;  // the library's own retry connected meanwhile
+        }
+      }
       std::string failure;
       try {
         const ::mqtt::token_ptr tok = client_->connect(connect_options_);
@@ -386,6 +392,9 @@ struct mqtt_link::impl {
       }
       {
         std::lock_guard<std::mutex> lock(mutex_);
+        if (connections_ > 0) {
+          return true;  // this attempt lost the race against the library's own retry
+        }
         last_connect_error_ = failure;
       }
       report(link_report_level::warning, "connect to " + options_.broker.uri + " as " + options_.broker.client_id +
@@ -393,9 +402,7 @@ struct mqtt_link::impl {
                                              std::to_string(backoff.count()) + " s");
       {
         std::unique_lock<std::mutex> lock(mutex_);
-        if (changed_.wait_for(lock, backoff, [&] { return stop_requested_; })) {
-          return false;
-        }
+        changed_.wait_for(lock, backoff, [&] { return stop_requested_ || connections_ > 0; });
       }
       backoff = std::min(backoff * 2, options_.reconnect_max);
     }
@@ -413,13 +420,13 @@ struct mqtt_link::impl {
     if (!detail::tcp_port_accepts(*where, k_tcp_probe_timeout)) {
       return " (nothing accepts TCP connections at " + where->host + ":" + where->port + ")";
     }
-    if (starts_with(options_.broker.uri, "ssl://")) {
-      return " (the port accepts TCP, so the TLS handshake failed: the broker's certificate must chain to " +
-             (options_.broker.tls && !options_.broker.tls->ca_file.empty() ? options_.broker.tls->ca_file
-                                                                             : std::string("the system's CAs")) +
-             " and name the host " + where->host + ")";
+    if (!starts_with(options_.broker.uri, "ssl://")) {
+      return " (the port accepts TCP connections now)";
     }
-    return {};
+    return " (the port accepts TCP, so the TLS handshake failed: the broker's certificate must chain to " +
+           (options_.broker.tls && !options_.broker.tls->ca_file.empty() ? options_.broker.tls->ca_file
+                                                                         : std::string("the system's CAs")) +
+           " and name the host " + where->host + ")";
   }
 
   bool stopping() const {
@@ -459,8 +466,8 @@ struct mqtt_link::impl {
           send_failure_reported_ = true;
         }
         if (first_in_connection) {
-          report(link_report_level::warning, "publish to " + e.message.topic + " not accepted, will retry: " +
-                                                 describe(ex));
+          report(link_report_level::warning,
+                 "publish to " + e.message.topic + " not accepted, will retry: " + describe(ex));
         }
         return;
       }
@@ -491,9 +498,25 @@ struct mqtt_link::impl {
     bool entered_ = false;
   };
 
-  void on_message(const ::mqtt::const_message_ptr& m) {
+  // Every handler the library calls goes through here: the gate, and no exception may
+  // propagate into the library's thread.
+  template <typename Body>
+  void run_handler(const char* what, Body&& body) noexcept {
     const handler_scope scope(*this);
-    if (!scope || !m) {
+    if (!scope) {
+      return;
+    }
+    try {
+      body();
+    } catch (const std::exception& e) {
+      report(link_report_level::error, std::string("client library handler (") + what + ") failed: " + e.what());
+    } catch (...) {
+      report(link_report_level::error, std::string("client library handler (") + what + ") failed");
+    }
+  }
+
+  void on_message(const ::mqtt::const_message_ptr& m) {
+    if (!m) {
       return;
     }
     if (!inbound_.push(inbound_message{m->get_topic(), m->to_string(), m->is_retained()})) {
@@ -512,10 +535,6 @@ struct mqtt_link::impl {
   }
 
   void on_connected(const std::string& /*cause*/) {
-    const handler_scope scope(*this);
-    if (!scope) {
-      return;
-    }
     std::uint64_t epoch = 0;
     std::uint64_t connection_number = 0;
     std::size_t queued_again = 0;
@@ -537,6 +556,7 @@ struct mqtt_link::impl {
         }
       }
     }
+    changed_.notify_all();  // ends the sender's first-connect loop
     report(link_report_level::info,
            "connected to " + options_.broker.uri + " as " + options_.broker.client_id +
                (connection_number > 1 ? " (reconnect " + std::to_string(connection_number - 1) + ", " +
@@ -556,10 +576,6 @@ struct mqtt_link::impl {
   }
 
   void on_subscribe_success(const ::mqtt::token& tok) {
-    const handler_scope scope(*this);
-    if (!scope) {
-      return;
-    }
     std::string refused;
     try {
       const auto codes = tok.get_subscribe_response().get_reason_codes();
@@ -579,10 +595,6 @@ struct mqtt_link::impl {
   }
 
   void on_subscribe_failure(const ::mqtt::token& tok) {
-    const handler_scope scope(*this);
-    if (!scope) {
-      return;
-    }
     report(link_report_level::error, "subscribe failed (return code " + std::to_string(tok.get_return_code()) +
                                          "); link stays not ready until the next connect");
   }
@@ -615,19 +627,11 @@ struct mqtt_link::impl {
   }
 
   void on_status_failure(const ::mqtt::token& tok) {
-    const handler_scope scope(*this);
-    if (!scope) {
-      return;
-    }
     report(link_report_level::warning, "online status not acknowledged (return code " +
                                            std::to_string(tok.get_return_code()) + "); sent again on reconnect");
   }
 
   void on_connection_lost(const std::string& cause) {
-    const handler_scope scope(*this);
-    if (!scope) {
-      return;
-    }
     std::size_t returned = 0;
     {
       std::lock_guard<std::mutex> lock(mutex_);
@@ -637,17 +641,12 @@ struct mqtt_link::impl {
       returned = box_.on_connection_lost();
     }
     changed_.notify_all();
-    report(link_report_level::warning, "connection to " + options_.broker.uri + " lost" +
-                                           (cause.empty() ? std::string{} : ": " + cause) + "; " +
-                                           std::to_string(returned) +
-                                           " unacknowledged message(s) will be sent again; reconnecting");
+    report(link_report_level::warning,
+           "connection to " + options_.broker.uri + " lost" + (cause.empty() ? std::string{} : ": " + cause) + "; " +
+               std::to_string(returned) + " unacknowledged message(s) will be sent again; reconnecting");
   }
 
   void on_delivery_success(const ::mqtt::token& tok) {
-    const handler_scope scope(*this);
-    if (!scope) {
-      return;
-    }
     {
       std::lock_guard<std::mutex> lock(mutex_);
       (void)box_.on_delivered(from_context(tok.get_user_context()));
@@ -660,10 +659,6 @@ struct mqtt_link::impl {
   }
 
   void on_delivery_failure(const ::mqtt::token& tok) {
-    const handler_scope scope(*this);
-    if (!scope) {
-      return;
-    }
     {
       std::lock_guard<std::mutex> lock(mutex_);
       if (box_.on_send_failed(from_context(tok.get_user_context()))) {
@@ -699,9 +694,15 @@ struct mqtt_link::impl {
                                            std::to_string(dropped) + " dropped so far");
   }
 
-  void report(link_report_level level, const std::string& text) const {
-    if (options_.report) {
+  // A sink that throws is ignored: nothing may propagate into the library's thread, and
+  // there is nowhere else to report the failure of the reporter.
+  void report(link_report_level level, const std::string& text) const noexcept {
+    if (!options_.report) {
+      return;
+    }
+    try {
       options_.report(level, text);
+    } catch (...) {
     }
   }
 
@@ -741,74 +742,10 @@ struct mqtt_link::impl {
   std::unique_ptr<::mqtt::async_client> client_;
 };
 
-// ---- validation -----------------------------------------------------------------------
-
-namespace {
-
-std::string validate(const mqtt_link_options& o) {
-  const broker_config& b = o.broker;
-  const bool tcp = starts_with(b.uri, "tcp://");
-  const bool ssl = starts_with(b.uri, "ssl://");
-  if (!tcp && !ssl) {
-    return "broker.uri \"" + b.uri + "\": must start with tcp:// or ssl://";
-  }
-  if (b.uri.size() <= std::string("tcp://").size()) {
-    return "broker.uri \"" + b.uri + "\": names no host";
-  }
-  if (b.client_id.empty()) {
-    return "broker.client_id is empty: a persistent session needs a stable client id";
-  }
-  if (!(b.keepalive_s >= 1.0 && b.keepalive_s <= 65535.0)) {
-    return "broker.keepalive_s " + std::to_string(b.keepalive_s) + ": must lie in 1 ... 65535 s";
-  }
-  if (b.tls && tcp) {
-    return "broker.tls is set but broker.uri " + b.uri + " is plain tcp://: use ssl://";
-  }
-  if (!b.password_file.empty() && b.username.empty()) {
-    return "broker.password_file is set but broker.username is empty (MQTT 3.1.1 sends no password without a user)";
-  }
-  if (b.tls) {
-    for (const auto& [field, path] : {std::pair<std::string, std::string>{"broker.tls.ca_file", b.tls->ca_file},
-                                      {"broker.tls.cert_file", b.tls->cert_file},
-                                      {"broker.tls.key_file", b.tls->key_file}}) {
-      if (!path.empty()) {
-        if (std::string why = check_readable(field, path); !why.empty()) {
-          return why;
-        }
-      }
-    }
-    if (!b.tls->key_file.empty() && b.tls->cert_file.empty()) {
-      return "broker.tls.key_file is set without broker.tls.cert_file";
-    }
-  }
-  if (!o.status_topic.empty()) {
-    if (std::string why = invalid_publish_topic(o.status_topic); !why.empty()) {
-      return "status topic \"" + o.status_topic + "\": " + why;
-    }
-  }
-  for (const std::string& filter : o.subscriptions) {
-    if (filter.empty()) {
-      return "an empty subscription topic filter";
-    }
-  }
-  if (o.max_in_flight < 1 || o.max_in_flight > 1000) {
-    return "max_in_flight " + std::to_string(o.max_in_flight) + ": must lie in 1 ... 1000";
-  }
-  if (o.reconnect_min.count() < 1 || o.reconnect_max < o.reconnect_min) {
-    return "reconnect back-off: need 1 s <= reconnect_min <= reconnect_max";
-  }
-  if (o.connect_timeout.count() < 1) {
-    return "connect_timeout must be at least 1 s";
-  }
-  return {};
-}
-
-}  // namespace
-
 // ---- mqtt_link ------------------------------------------------------------------------
 
 result<mqtt_link> mqtt_link::create(mqtt_link_options options) {
-  if (std::string why = validate(options); !why.empty()) {
+  if (std::string why = detail::check_link_options(options); !why.empty()) {
     return make_error(error_code::invalid_argument, why);
   }
   std::string password;

@@ -118,9 +118,9 @@ class outbox {
   std::size_t capacity_;
   outbox_id next_id_ = 1;
   slot_map entries_;
-  std::set<outbox_id> pending_;                                       // sending order
+  std::set<outbox_id> pending_;  // sending order
   std::array<std::set<outbox_id>, k_message_class_count> pending_by_class_;
-  std::unordered_map<std::string, outbox_id> newest_keyed_;           // topic -> newest keyed entry
+  std::unordered_map<std::string, outbox_id> newest_keyed_;  // topic -> newest keyed entry
   std::array<std::uint64_t, k_message_class_count> dropped_{};
   std::uint64_t superseded_ = 0;
   std::uint64_t delivered_ = 0;

@@ -15,8 +15,7 @@
 //   persistence has forgotten it.
 // - Inbound: a bounded queue (dewmargin/inbound_queue.h); overflow is counted, command
 //   topics (must_keep_prefixes) are never dropped.
-// - Connect: start() returns at once. The first connect is retried with bounded back-off
-//   (the library's automatic reconnect only covers connections that once succeeded);
+// - Connect: start() returns at once. The first connect is retried with bounded back-off;
 //   afterwards the library reconnects automatically with the same bounds.
 //
 // Threads:
@@ -32,10 +31,29 @@
 // - `report` is called from any of these threads, never with the link's lock held: it must
 //   be thread-safe. It never receives the password.
 //
-// Paho notes that shaped this (measured with Paho C 1.3.12, see the integration tests):
-// inbound messages arrive through set_message_callback, not the consume queue (whose
-// capacity, when set, makes the library thread block) nor set_callback (lock-order problem);
-// the client is created without persistence, so nothing is written to the working directory.
+// Paho MQTT C++ 1.2.0 / C 1.3.12 facts that shaped this (see tests/integration):
+// - Inbound goes through set_message_callback into our own bounded queue. The consume
+//   queue cannot be bounded from async_client (its queue is private, no capacity setter),
+//   and a bounded thread_queue::put() would block the library's only thread; set_callback
+//   has a lock-order problem in this version.
+// - No persistence object: the client writes nothing, least of all into the working
+//   directory (tested). The outbox is the only buffer; it lives in memory.
+// - The first connect fails (throws from its token) while the broker is down. Automatic
+//   reconnect does retry it, but only about 4 s later (1-2 s bounds; never without automatic
+//   reconnect): the sender thread retries it on its own back-off until either succeeds.
+//   Overlapping attempts were measured to end in one connection.
+// - The library's default buffer of 100 messages also counts messages in flight (error
+//   -12): max buffered messages and max in flight are set to max_in_flight + 16.
+// - With clean session off the library itself resends unacknowledged QoS 1 messages after
+//   a reconnect and completes their original tokens; the outbox resends them too when its
+//   sender gets there first, so a subscriber may see a duplicate, never a gap.
+// - ssl_options::set_error_handler is unusable: connect() takes its options by value and
+//   the C library keeps a pointer to the handler inside that copy (use after scope, found
+//   by ASan). A failed TLS connect is explained by probing the TCP port instead.
+// - Host-name verification is ssl_options::set_verify(true), separate from
+//   set_enable_server_cert_auth(true); both are on.
+// - Destroying the client without a DISCONNECT would suppress the will too, so the
+//   destructor publishes offline_will_payload itself (see ~mqtt_link).
 #include <array>
 #include <chrono>
 #include <cstddef>
@@ -56,16 +74,16 @@ namespace dewmargin {
 enum class link_report_level { info, warning, error };
 
 struct mqtt_link_options {
-  broker_config broker;                      // uri tcp:// or ssl://, client_id required
-  std::string status_topic;                  // <prefix>/status; empty: no will, no status
-  std::string online_payload;                // retained on status_topic after each subscribe
-  std::string offline_will_payload;          // the Last Will, retained, QoS 1
-  std::vector<std::string> subscriptions;    // topic filters, subscribed at QoS 1
+  broker_config broker;                         // uri tcp:// or ssl://, client_id required
+  std::string status_topic;                     // <prefix>/status; empty: no will, no status
+  std::string online_payload;                   // retained on status_topic after each subscribe
+  std::string offline_will_payload;             // the Last Will, retained, QoS 1
+  std::vector<std::string> subscriptions;       // topic filters, subscribed at QoS 1
   std::vector<std::string> must_keep_prefixes;  // inbound topics never dropped ("<prefix>/cmd/")
-  std::size_t inbound_capacity = 10000;      // messages
-  std::size_t outbox_capacity = 10000;       // messages
-  std::size_t max_in_flight = 64;            // about 100 QoS 1 in flight gives Paho error -12
-  std::chrono::seconds reconnect_min{1};     // back-off bounds; the library counts whole seconds
+  std::size_t inbound_capacity = 10000;         // messages
+  std::size_t outbox_capacity = 10000;          // messages
+  std::size_t max_in_flight = 64;               // about 100 QoS 1 in flight gives Paho error -12
+  std::chrono::seconds reconnect_min{1};        // back-off bounds; the library counts whole seconds
   std::chrono::seconds reconnect_max{30};
   std::chrono::seconds connect_timeout{10};
   std::function<void(link_report_level, const std::string&)> report;  // may be empty
@@ -80,9 +98,9 @@ struct mqtt_link_stats {
   std::uint64_t send_failures = 0;       // sends the library refused or failed (sent again later)
   std::uint64_t rejected = 0;            // messages refused for good (invalid topic)
   std::array<std::uint64_t, k_message_class_count> dropped_outbox{};  // by class_index(message_class)
-  std::uint64_t superseded = 0;          // keyed messages replaced by a newer one (not a loss)
-  std::uint64_t connections = 0;         // successful connects, the first included
-  std::uint64_t reconnects = 0;          // connections after the first
+  std::uint64_t superseded = 0;   // keyed messages replaced by a newer one (not a loss)
+  std::uint64_t connections = 0;  // successful connects, the first included
+  std::uint64_t reconnects = 0;   // connections after the first
   std::uint64_t connection_losses = 0;
   std::size_t inbound_queued = 0;
   std::size_t outbox_size = 0;
