@@ -121,6 +121,16 @@ TEST(ZoneValve, ReopensOnlyAfterReopenAfterSOfSafeOrTight) {
   }
 }
 
+TEST(ZoneValve, ReopenReasonMentionsTheWindowOnlyWhenThereIsOne) {
+  zone_valve v = closed_valve();
+  valve_conditions c = zone_in(band::safe);
+  c.has_window = false;
+  EXPECT_FALSE(v.update(c, at_s(5)).has_value());
+  const auto d = v.update(c, at_s(605));
+  ASSERT_TRUE(d.has_value());
+  EXPECT_EQ(d->reason, "zone safe for 600 s");
+}
+
 TEST(ZoneValve, CountsSafeAndTightTogetherForTheReopenTimer) {
   zone_valve v = closed_valve();
   v.update(zone_in(band::tight), at_s(5));

@@ -413,6 +413,7 @@ struct engine::state {
       vc.zone_band = after;
       vc.unknown_is_fault = z.unknown_is_fault;
       vc.window_open = z.window_slot && slots[*z.window_slot].active;
+      vc.has_window = z.window_slot.has_value();
       if (const auto d = z.valve->update(vc, now)) {
         event_json e(cfg.site, now, subject_type::zone, z.cfg->id, "valve");
         e.text_or_null("from", valve_position_name(d->from)).text("to", valve_position_name(d->to));

@@ -48,7 +48,8 @@ std::optional<valve_decision> zone_valve::update(const valve_conditions& c, time
       seconds_between(*fine_since_, now) >= reopen_after_s_) {
     position_ = valve_position::open;
     char buf[96];
-    std::snprintf(buf, sizeof buf, "zone %s, window closed for %.0f s", band_name(c.zone_band), reopen_after_s_);
+    std::snprintf(buf, sizeof buf, c.has_window ? "zone %s, window closed for %.0f s" : "zone %s for %.0f s",
+                  band_name(c.zone_band), reopen_after_s_);
     return valve_decision{valve_position::closed, valve_position::open, buf};
   }
   return std::nullopt;

@@ -18,6 +18,7 @@ struct valve_conditions {
   band zone_band = band::unknown;
   bool unknown_is_fault = false;  // false while waiting for the first readings after start
   bool window_open = false;
+  bool has_window = true;         // the zone has a window contact (only words the reason)
 };
 
 struct valve_decision {
