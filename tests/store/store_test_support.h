@@ -11,6 +11,7 @@
 #include <filesystem>
 #include <mutex>
 #include <string>
+#include <thread>
 #include <vector>
 
 #include "dewmargin/store.h"
@@ -21,6 +22,18 @@ namespace dewmargin::store_test {
 inline constexpr std::int64_t k_t0_ms = 1'784'034'000'000;
 inline constexpr std::int64_t k_day_ms = 86'400'000;
 inline constexpr auto k_wait = std::chrono::seconds{30};  // bound on every wait; never reached when all is well
+
+// Bounded wait for a condition the writer's thread brings about; polls without any assumption
+// about how long it takes.
+template <typename Pred>
+bool eventually(Pred pred) {
+  const auto deadline = std::chrono::steady_clock::now() + k_wait;
+  while (!pred()) {
+    if (std::chrono::steady_clock::now() > deadline) return false;
+    std::this_thread::yield();
+  }
+  return true;
+}
 
 class temp_dir {
  public:

@@ -10,6 +10,7 @@ namespace {
 using store_test::contains;
 using store_test::error_sink;
 using store_test::k_t0_ms;
+using store_test::eventually;
 using store_test::k_wait;
 using store_test::make_event;
 using store_test::raw_db;
@@ -19,16 +20,6 @@ engine_output events(int first, int count) {
   engine_output out;
   for (int i = first; i < first + count; ++i) out.events.push_back(make_event(k_t0_ms + i, "z1", "input"));
   return out;
-}
-
-template <typename Pred>
-bool eventually(Pred pred) {
-  const auto deadline = std::chrono::steady_clock::now() + k_wait;
-  while (!pred()) {
-    if (std::chrono::steady_clock::now() > deadline) return false;
-    std::this_thread::yield();
-  }
-  return true;
 }
 
 TEST(StoreErrors, ALockedDatabaseIsReportedAndTheRowsWrittenOnceItIsReleased) {

@@ -8,6 +8,7 @@ namespace {
 
 using store_test::error_sink;
 using store_test::k_t0_ms;
+using store_test::eventually;
 using store_test::k_wait;
 using store_test::make_event;
 using store_test::make_sample;
@@ -18,18 +19,6 @@ engine_output one_event(std::int64_t ts_ms, const char* kind = "band") {
   engine_output out;
   out.events.push_back(make_event(ts_ms, "z1", kind));
   return out;
-}
-
-// Bounded wait for a condition the writer's thread brings about; polls without any assumption
-// about how long it takes.
-template <typename Pred>
-bool eventually(Pred pred) {
-  const auto deadline = std::chrono::steady_clock::now() + k_wait;
-  while (!pred()) {
-    if (std::chrono::steady_clock::now() > deadline) return false;
-    std::this_thread::yield();
-  }
-  return true;
 }
 
 TEST(StoreWriter, ManyRowsAreWrittenInOneCommit) {
