@@ -5,6 +5,7 @@
 #include <cstdio>
 #include <nlohmann/json.hpp>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "dewmargin/config.h"
@@ -109,12 +110,17 @@ class engine_driver {
   // Feeds a full set of readings for a zone-1/zone-2 site in one go.
   void readings(double z1_temp, double z1_rh, double z1_surface, double supply, double z2_temp = 24,
                 double z2_rh = 40) {
-    send("plant/a/supply", std::to_string(supply));
-    send("b/z1/temp", std::to_string(z1_temp));
-    send("b/z1/rh", std::to_string(z1_rh));
-    send("b/z1/surface", std::to_string(z1_surface));
-    send("b/z2/temp", std::to_string(z2_temp));
-    send("b/z2/rh", std::to_string(z2_rh));
+    readings_without("", z1_temp, z1_rh, z1_surface, supply, z2_temp, z2_rh);
+  }
+  // The same set with one topic left silent (24 °C/50 %, surface 17, supply 16, z2 24 °C/40 %).
+  void readings_without(const std::string& silent, double z1_temp = 24, double z1_rh = 50, double z1_surface = 17,
+                        double supply = 16, double z2_temp = 24, double z2_rh = 40) {
+    const std::pair<const char*, double> all[] = {{"plant/a/supply", supply}, {"b/z1/temp", z1_temp},
+                                                  {"b/z1/rh", z1_rh},          {"b/z1/surface", z1_surface},
+                                                  {"b/z2/temp", z2_temp},      {"b/z2/rh", z2_rh}};
+    for (const auto& [topic, value] : all) {
+      if (topic != silent) send(topic, std::to_string(value));
+    }
   }
 
   std::vector<nlohmann::json> events(const std::string& kind = "") const {

@@ -91,11 +91,8 @@ TEST(Engine, SurfaceGoingStaleFallsBackToSupply) {
   d.readings(24, 50, 17, 16);
   // Everything but the surface keeps reporting.
   for (int i = 0; i < 4; ++i) {
-    d.at(50, "b/z1/temp", "24");
-    d.send("b/z1/rh", "50");
-    d.send("plant/a/supply", "16");
-    d.send("b/z2/temp", "24");
-    d.send("b/z2/rh", "40");
+    d.advance(50);
+    d.readings_without("b/z1/surface");
   }
   const auto inputs = d.input_events("b/z1/surface");
   ASSERT_EQ(inputs.size(), 1u);
@@ -110,15 +107,10 @@ TEST(Engine, InputIsStaleExactlyAtStaleAfter) {
   engine_driver d(small_site());
   d.readings(24, 50, 17, 16);
   // Keep all other inputs fresh by readings every 60 s; stop z1's humidity.
-  auto keep_others = [&] {
-    for (const char* t : {"b/z1/temp", "b/z1/surface", "plant/a/supply", "b/z2/temp", "b/z2/rh"}) {
-      d.send(t, std::string(t) == "b/z1/surface" ? "17" : (std::string(t) == "b/z2/rh" ? "40" : "24"));
-    }
-  };
   d.advance(60);
-  keep_others();
+  d.readings_without("b/z1/rh");
   d.advance(60);
-  keep_others();
+  d.readings_without("b/z1/rh");
   d.advance(59);  // 179 s since the last humidity reading
   EXPECT_TRUE(d.input_events("b/z1/rh").empty());
   d.advance(1);  // 180 s: stale
@@ -269,19 +261,15 @@ TEST(Engine, SetpointIgnoresZoneWithClosedValve) {
   // here, so close z2's valve by letting its humidity go stale.
   for (int i = 0; i < 4; ++i) {
     d.advance(60);
-    d.send("plant/a/supply", "16");
-    d.send("b/z1/temp", "24");
-    d.send("b/z1/rh", "50");
-    d.send("b/z1/surface", "17");
-    d.send("b/z2/temp", "24");
+    d.readings_without("b/z2/rh");
   }
   EXPECT_EQ(d.last_payload("b/z2/valve"), "CLOSED");
   // With z2 closed, only z1 counts: 12.93 + 2 → held at min after the ramp.
   for (int i = 0; i < 20; ++i) {
     d.advance(60);
-    d.readings(24, 50, 17, 16);
-    d.send("b/z2/temp", "24");
+    d.readings_without("b/z2/rh");  // z2 stays unknown, its valve closed
   }
+  EXPECT_EQ(d.last_payload("b/z2/valve"), "CLOSED");
   EXPECT_EQ(d.last_json("dm/loop/loop-a/state")["setpoint_c"], 15.0);
 }
 
@@ -298,11 +286,7 @@ TEST(Engine, UnknownCountedZoneDrivesSetpointToMax) {
   // z2's humidity sensor is replaced by a broken one: bad readings, then stale.
   for (int i = 0; i < 4; ++i) {
     d.advance(60);
-    d.send("plant/a/supply", "16");
-    d.send("b/z1/temp", "24");
-    d.send("b/z1/rh", "50");
-    d.send("b/z1/surface", "17");
-    d.send("b/z2/temp", "24");
+    d.readings_without("b/z2/rh");
     d.send("b/z2/rh", "n/a");
   }
   const auto loop = d.last_json("dm/loop/loop-a/state");
