@@ -2,18 +2,11 @@
 #include <CLI/CLI.hpp>
 #include <iostream>
 
+#include "dewmargin/caution.h"
 #include "dewmargin/config_loader.h"
+#include "dewmargin/version.h"
 #include "logging.h"
 #include "service.h"
-
-namespace {
-
-constexpr const char* k_caution =
-    "Caution: dewmargin supervises; it is not a safety device and no substitute for the plant's own\n"
-    "interlocks. Condensation causes water damage, mould, slip and electrical hazards. Follow local\n"
-    "codes and licensed practice.";
-
-}  // namespace
 
 int main(int argc, char** argv) {
   CLI::App app{"dewmargind: keeps chilled radiant surfaces above the dew point (MQTT service)"};
@@ -26,11 +19,11 @@ int main(int argc, char** argv) {
   app.add_flag("--journal", journal, "Log for the systemd journal (no timestamps, priority prefixes); "
                                      "detected automatically when stderr is the journal");
   app.add_option("--log-level", log_level, "trace, debug, info, warn, error, critical or off (overrides the config)");
-  app.set_version_flag("--version", "dewmargind 0.1.0");
+  app.set_version_flag("--version", std::string("dewmargind ") + dewmargin::k_version);
   app.footer(std::string("\nExample:\n  dewmargind --config /etc/dewmargin/dewmargin.yaml\n\n"
                          "Exit codes: 0 clean stop, 1 runtime failure, 2 bad usage or config.\n"
                          "SIGTERM/SIGINT stop, SIGHUP reloads the config.\n\n") +
-             k_caution);
+             dewmargin::k_caution);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -11,6 +11,7 @@
 #include "dewmargin/engine.h"
 #include "dewmargin/mqtt_link.h"
 #include "dewmargin/store_writer.h"
+#include "dewmargin/version.h"
 #include "logging.h"
 #include "signals.h"
 #include "systemd_notify.h"
@@ -18,7 +19,6 @@
 namespace dewmargin::daemon {
 namespace {
 
-constexpr const char* k_version = "0.1.0";
 constexpr auto k_tick = std::chrono::seconds(1);
 constexpr auto k_max_wait = std::chrono::milliseconds(200);  // signal and watchdog latency
 constexpr int k_burst = 256;

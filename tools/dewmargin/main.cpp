@@ -3,12 +3,14 @@
 #include <iostream>
 #include <string>
 
-#include "caution.h"
 #include "commands.h"
+#include "dewmargin/caution.h"
+#include "dewmargin/version.h"
 
 namespace {
 
 using namespace dewmargin::cli;  // NOLINT(google-build-using-namespace): file-local, in a .cpp
+using dewmargin::k_caution;
 
 int parse_failure(const CLI::Error& e, CLI::App& app) {
   if (e.get_exit_code() == 0) return app.exit(e);  // --help, --version
@@ -27,7 +29,7 @@ int main(int argc, char** argv) {
                          "  dewmargin history --db /var/lib/dewmargin/history.db --zone level2-east --since 2026-07-14\n\n") +
              k_caution);
   app.require_subcommand(1);
-  app.set_version_flag("--version", "dewmargin 0.1.0");
+  app.set_version_flag("--version", std::string("dewmargin ") + dewmargin::k_version);
 
   int exit_code = k_exit_ok;
 
