@@ -7,8 +7,10 @@
 
 #include "dewmargin/band.h"
 #include "dewmargin/change_gate.h"
+#include "dewmargin/command_guard.h"
 #include "dewmargin/cooling_output.h"
 #include "dewmargin/input_decoder.h"
+#include "dewmargin/input_fault.h"
 #include "dewmargin/margin_trend.h"
 #include "dewmargin/message_json.h"
 #include "dewmargin/operator_command.h"
@@ -44,12 +46,16 @@ struct input_slot {
   bool owner_is_loop = false;
   std::size_t owner = 0;
   double stale_after_s = 0.0;      // 0: never stale
+  double grace_s = 0.0;            // after start, how long its zone waits for its first reading
   std::optional<double> value;     // last good value, core units
   bool active = false;             // switches: last good state
   std::optional<timestamp> last_reading;  // last good reading
   std::optional<timestamp> last_message;  // last payload of any kind
   input_status status = input_status::awaiting;
-  std::string bad_reason;
+  std::optional<input_fault> fault;  // while bad: the kind of fault reported
+  std::string bad_reason;            // while bad: the reason of the first message of that kind
+  std::uint64_t bad_messages = 0;    // bad messages since the input last turned bad
+  unsigned faults_reported = 0;      // while bad: the kinds of fault already reported (bit per kind)
 
   [[nodiscard]] bool fresh(timestamp now) const {
     if (!last_reading) return false;
@@ -57,6 +63,10 @@ struct input_slot {
     return seconds_between(*last_reading, now) < stale_after_s;
   }
   [[nodiscard]] bool faulted(timestamp now) const { return !fresh(now) && status != input_status::awaiting; }
+  // Never reported, and still within the time its zone waits for it after start.
+  [[nodiscard]] bool awaited(double since_start_s) const {
+    return status == input_status::awaiting && since_start_s < grace_s;
+  }
 };
 
 struct minute_accumulator {
@@ -85,6 +95,9 @@ struct zone_rt {
   bool unknown_is_fault = false;
   std::string unknown_reason;
   bool alarm_condition = false;
+  // A restored active alarm is not cleared by the supply fallback: until one of the zone's
+  // surfaces has reported since start, the zone is judged on its surfaces only.
+  bool hold_restored_alarm = false;
 
   // Last publication.
   change_gate<7> gate;
@@ -153,6 +166,7 @@ struct engine::state {
   timestamp last_now{};
   bool begun = false;
   engine_counters counters;
+  command_guard commands;
 
   explicit state(site_config c) : cfg(std::move(c)) {}
 
@@ -167,6 +181,8 @@ struct engine::state {
     // Switches and contacts usually report only on change: never stale unless their own
     // stale_after_s says otherwise.
     s.stale_after_s = ic.stale_after_s.value_or(is_switch_kind(kind) ? 0.0 : default_stale_s);
+    // A never-stale input still cannot keep its zone waiting for ever.
+    s.grace_s = s.stale_after_s > 0.0 ? s.stale_after_s : default_stale_s;
     slots.push_back(std::move(s));
     const std::size_t id = slots.size() - 1;
     slots_by_topic[ic.topic].push_back(id);
@@ -239,6 +255,8 @@ struct engine::state {
     e.text("from", input_status_name(from)).text("to", input_status_name(to)).text("topic", s.cfg->topic);
     if (!s.cfg->field.empty()) e.text("field", s.cfg->field);
     e.text("input", input_kind_name(s.kind)).text("reason", reason);
+    if (to == input_status::bad && s.fault) e.text("fault", input_fault_name(*s.fault));
+    if (from == input_status::bad && to != input_status::bad) e.integer("bad_messages", static_cast<long long>(s.bad_messages));
     emit_event(out, now, st, id, "input", e, false);
   }
 
@@ -322,6 +340,17 @@ struct engine::state {
   }
 
   // ---- zone evaluation ---------------------------------------------------------------
+  // A zone is judged only once each of its own inputs (air, every humidity, every surface;
+  // the loop's supply for a zone without surfaces) has reported or gone missing.
+  bool awaiting_own_inputs(const zone_rt& z, timestamp now) const {
+    const double since_start_s = seconds_between(start, now);
+    const auto awaited = [&](std::size_t id) { return slots[id].awaited(since_start_s); };
+    if (awaited(z.air_slot)) return true;
+    if (std::any_of(z.humidity_slots.begin(), z.humidity_slots.end(), awaited)) return true;
+    if (std::any_of(z.surface_slots.begin(), z.surface_slots.end(), awaited)) return true;
+    return z.surface_slots.empty() && awaited(loops[z.loop].supply_slot);
+  }
+
   void evaluate_zone(std::size_t zi, timestamp now, engine_output& out) {
     zone_rt& z = zones[zi];
     const input_slot& air = slots[z.air_slot];
@@ -348,27 +377,34 @@ struct engine::state {
     if (!z.rh_pct && !z.humidity_slots.empty()) z.rh_pct = slot_value(slots[z.humidity_slots.front()], now);
 
     z.surface_min_c.reset();
-    bool surface_awaiting = false;
+    bool surface_seen = false;
     for (std::size_t s : z.surface_slots) {
       const input_slot& ss = slots[s];
-      if (ss.status == input_status::awaiting) surface_awaiting = true;
+      if (ss.last_reading) surface_seen = true;
       const auto v = slot_value(ss, now);
       if (v && (!z.surface_min_c || *v < *z.surface_min_c)) z.surface_min_c = v;
     }
+    if (surface_seen) z.hold_restored_alarm = false;
+    const bool supply_allowed = !(z.hold_restored_alarm && !z.surface_slots.empty());
     const input_slot& supply = slots[loops[z.loop].supply_slot];
     z.supply_c = slot_value(supply, now);
-    std::optional<double> reference_c = z.surface_min_c ? z.surface_min_c : z.supply_c;
-    z.margin_source = z.surface_min_c ? "surface" : (z.supply_c ? "supply" : nullptr);
+    const std::optional<double> fallback_c = supply_allowed ? z.supply_c : std::nullopt;
+    const std::optional<double> reference_c = z.surface_min_c ? z.surface_min_c : fallback_c;
+    z.margin_source = z.surface_min_c ? "surface" : (fallback_c ? "supply" : nullptr);
     z.margin_k.reset();
-    if (reference_c && z.dew_point_c) z.margin_k = *reference_c - *z.dew_point_c;
+    const bool waiting = awaiting_own_inputs(z, now);
+    if (reference_c && z.dew_point_c && !waiting) z.margin_k = *reference_c - *z.dew_point_c;
 
     // Unknown because of a fault, or only because the first readings have not come yet?
     const bool air_faulted = air.faulted(now);
-    const bool reference_faulted = !reference_c && !surface_awaiting && supply.status != input_status::awaiting;
-    z.unknown_is_fault = !z.margin_k && (air_faulted || (humidity_faulted && !z.dew_point_c) || reference_faulted ||
-                                         !dew_point_error.empty());
+    const bool reference_faulted = !reference_c && (!supply_allowed || supply.status != input_status::awaiting);
+    z.unknown_is_fault = !waiting && !z.margin_k &&
+                         (air_faulted || (humidity_faulted && !z.dew_point_c) || reference_faulted ||
+                          !dew_point_error.empty());
     if (z.margin_k) {
       z.unknown_reason.clear();
+    } else if (waiting) {
+      z.unknown_reason = "waiting for the first readings";
     } else if (!z.air_temp_c) {
       z.unknown_reason = std::string("air temperature ") + input_status_name(air.status);
     } else if (!z.dew_point_c) {
@@ -382,15 +418,17 @@ struct engine::state {
     bi.switch_active = z.switch_slot && slots[*z.switch_slot].active;
     const band before = z.bands.current();
     const bool alarm_condition_before = z.alarm_condition;
+    const alarm_status alarm_before = z.alarm.status();
     const band after = z.bands.update(bi, now);
     // While a zone only waits for its first readings its alarm is held as it is (also a
     // restored one), so that a restart neither raises nor clears alarms by itself.
-    const bool waiting = after == band::unknown && !z.unknown_is_fault;
-    if (!waiting) z.alarm.on_band(after, z.unknown_is_fault);
-    z.alarm_condition = is_alarm_band(after) && (after != band::unknown || z.unknown_is_fault);
+    if (after != band::unknown || z.unknown_is_fault) {
+      z.alarm.on_band(after, z.unknown_is_fault);
+      z.alarm_condition = is_alarm_band(after);
+    }
 
     bool snapshot_due = false;
-    if (after != before || z.alarm_condition != alarm_condition_before) {
+    if (after != before || z.alarm_condition != alarm_condition_before || z.alarm.status() != alarm_before) {
       event_json e(cfg.site, now, subject_type::zone, z.cfg->id, "band");
       e.text("from", band_name(before)).text("to", band_name(after));
       e.number("margin_k", z.margin_k).number("dew_point_c", z.dew_point_c);
@@ -474,35 +512,30 @@ struct engine::state {
   // Returns true when the slot's value or state changed.
   bool apply_reading(input_slot& s, std::string_view payload, timestamp reading_ts, timestamp now,
                      engine_output& out) {
-    std::string reason;
+    s.last_message = now;
+    std::optional<error> fault_error;
+    std::optional<input_fault> fault;  // set where the stage alone names it
     double value = 0.0;
     bool active = false;
-    s.last_message = now;
     if (s.last_reading && reading_ts < *s.last_reading) {
-      reason = "reading older than the last one (" + format_iso8601_utc(reading_ts) + " < " +
-               format_iso8601_utc(*s.last_reading) + ")";
+      fault = input_fault::out_of_order;
+      fault_error = make_error(error_code::out_of_range, "reading older than the last one (" +
+                                                            format_iso8601_utc(reading_ts) + " < " +
+                                                            format_iso8601_utc(*s.last_reading) + ")");
     } else if (is_switch_kind(s.kind)) {
       auto r = decode_switch(payload, *s.cfg);
       if (r) active = r.value();
-      else reason = r.err().message;
+      else fault_error = r.err();
+    } else if (auto r = decode_number(payload, *s.cfg, s.kind); !r) {
+      fault_error = r.err();
+    } else if (auto p = check_plausible(r.value(), s.kind, cfg.plausibility); !p) {
+      fault = input_fault::out_of_range;
+      fault_error = p.err();
     } else {
-      auto r = decode_number(payload, *s.cfg, s.kind);
-      if (r) {
-        auto p = check_plausible(r.value(), s.kind, cfg.plausibility);
-        if (p) value = p.value();
-        else reason = p.err().message;
-      } else {
-        reason = r.err().message;
-      }
+      value = p.value();
     }
-    if (!reason.empty()) {
-      ++counters.bad_readings;
-      // One event per change of the input's state or reason, not one per bad message.
-      if (s.status != input_status::bad || s.bad_reason != reason) {
-        emit_input_event(out, now, s, s.status, input_status::bad, reason);
-        s.status = input_status::bad;
-        s.bad_reason = reason;
-      }
+    if (fault_error) {
+      note_bad_reading(s, fault.value_or(classify_decode_error(*fault_error)), fault_error->message, now, out);
       return false;
     }
     ++counters.readings;
@@ -513,12 +546,38 @@ struct engine::state {
       s.value = value;
     }
     s.last_reading = reading_ts;
-    s.status = input_status::ok;
-    s.bad_reason.clear();
     if (before != input_status::ok && before != input_status::awaiting) {
       emit_input_event(out, now, s, before, input_status::ok, "reading accepted again");
     }
+    s.status = input_status::ok;
+    s.fault.reset();
+    s.bad_reason.clear();
+    s.bad_messages = 0;
     return true;
+  }
+
+  // One event when the input turns bad and one for each further kind of fault while it stays
+  // bad (so two bad payloads taking turns are two events, not one per message); the rest
+  // are counted. The event keeps the reason of the first message of its kind.
+  void note_bad_reading(input_slot& s, input_fault fault, const std::string& reason, timestamp now,
+                        engine_output& out) {
+    ++counters.bad_readings;
+    const unsigned bit = 1U << static_cast<unsigned>(fault);
+    if (s.status != input_status::bad) {
+      s.bad_messages = 0;
+      s.faults_reported = 0;
+    }
+    ++s.bad_messages;
+    if (s.faults_reported & bit) {
+      ++counters.suppressed_input_events;
+      return;
+    }
+    s.faults_reported |= bit;
+    const input_status from = s.status;
+    s.status = input_status::bad;
+    s.fault = fault;
+    s.bad_reason = reason;
+    emit_input_event(out, now, s, from, input_status::bad, reason);
   }
 
   void on_reading(const std::vector<std::size_t>& ids, std::string_view payload, timestamp reading_ts, timestamp now,
@@ -554,9 +613,18 @@ struct engine::state {
   }
 
   // ---- commands ---------------------------------------------------------------------
-  void reject(const std::string& topic, const std::string& verb, const std::string& zone, const std::string& reason,
-              timestamp now, engine_output& out) {
+  void reject(const std::string& topic, const std::string& verb, const std::string& zone, rejection_kind kind,
+              const std::string& reason, timestamp now, engine_output& out) {
     ++counters.rejected;
+    if (!commands.report_rejection(topic, kind, now)) {
+      ++counters.suppressed_rejections;
+      return;
+    }
+    emit_rejected(topic, verb, zone, reason, now, out);
+  }
+
+  void emit_rejected(const std::string& topic, const std::string& verb, const std::string& zone,
+                     const std::string& reason, timestamp now, engine_output& out) {
     const bool known = zone_index.count(zone) > 0;
     const subject_type st = known ? subject_type::zone : subject_type::site;
     event_json e(cfg.site, now, st, zone, "rejected");
@@ -567,12 +635,29 @@ struct engine::state {
 
   void on_command(const std::string& topic, std::string_view payload, timestamp now, engine_output& out) {
     const std::string verb = topic.substr(cmd_prefix.size());
+    if (!commands.admit(now)) {
+      ++counters.rate_limited;
+      if (commands.report_rate_limit(now)) {
+        char reason[96];
+        std::snprintf(reason, sizeof reason, "too many commands: more than %.0f a second (bursts of %.0f)",
+                      k_command_rate_per_s, k_command_burst);
+        emit_rejected(topic, verb, "", reason, now, out);
+      }
+      return;
+    }
     std::string zone_named;
     auto parsed = parse_operator_command(verb, payload, zone_named);
-    if (!parsed) return reject(topic, verb, zone_named, parsed.err().message, now, out);
+    if (!parsed) {
+      const rejection_kind kind = payload.size() > k_max_command_bytes ? rejection_kind::too_large
+                                  : !parse_command_verb(verb)          ? rejection_kind::unknown_command
+                                                                       : rejection_kind::malformed;
+      return reject(topic, verb, zone_named, kind, parsed.err().message, now, out);
+    }
     const operator_command& c = parsed.value();
     const auto it = zone_index.find(c.zone);
-    if (it == zone_index.end()) return reject(topic, verb, c.zone, "unknown zone '" + c.zone + "'", now, out);
+    if (it == zone_index.end()) {
+      return reject(topic, verb, c.zone, rejection_kind::unknown_zone, "unknown zone '" + c.zone + "'", now, out);
+    }
     zone_rt& z = zones[it->second];
 
     const alarm_status before = z.alarm.status();
@@ -582,7 +667,7 @@ struct engine::state {
       case command_verb::shelve: why = z.alarm.shelve(c.minutes, now); break;
       case command_verb::unshelve: why = z.alarm.unshelve(); break;
     }
-    if (!why.empty()) return reject(topic, verb, c.zone, why, now, out);
+    if (!why.empty()) return reject(topic, verb, c.zone, rejection_kind::refused, why, now, out);
     ++counters.commands;
 
     event_json e(cfg.site, now, subject_type::zone, z.cfg->id, command_verb_name(c.verb));
@@ -620,10 +705,16 @@ struct engine::state {
         emit_input_event(out, now, s, s.status, input_status::stale,
                          "no reading for " + format_seconds(s.stale_after_s));
         s.status = input_status::stale;
+        s.fault.reset();
+        s.bad_reason.clear();
+        s.bad_messages = 0;
       } else if (since_start_s >= s.stale_after_s && s.status != input_status::missing) {
         emit_input_event(out, now, s, s.status, input_status::missing,
                          "no reading in the " + format_seconds(s.stale_after_s) + " since start");
         s.status = input_status::missing;
+        s.fault.reset();
+        s.bad_reason.clear();
+        s.bad_messages = 0;
       }
     }
   }
@@ -717,7 +808,9 @@ struct engine::state {
     for (loop_rt& l : loops) publish_loop(l, now, out, true);
   }
 
-  void restore(const restored_state& r) {
+  // `from_storage`: a restart (the alarms are held until the zones' own inputs report),
+  // not a reload (which carries the readings over too).
+  void restore(const restored_state& r, bool from_storage) {
     for (const auto& zs : r.zones) {
       const auto it = zone_index.find(zs.zone);
       if (it == zone_index.end()) continue;  // zone removed from the config since
@@ -733,6 +826,7 @@ struct engine::state {
       if (a.active && alarm_band == band::safe) alarm_band = band::alarm;
       z.alarm.restore(a, alarm_band);
       z.alarm_condition = a.active;
+      z.hold_restored_alarm = from_storage && a.active;
       if (z.valve) {
         if (zs.valve == "open") z.valve->restore(valve_position::open);
         if (zs.valve == "closed") z.valve->restore(valve_position::closed);
@@ -756,7 +850,7 @@ void engine::begin(timestamp now, const restored_state& restored, engine_output&
   s_->start = now;
   s_->last_now = now;
   s_->begun = true;
-  s_->restore(restored);
+  s_->restore(restored, true);
   s_->publish_all(now, out);
 }
 
@@ -766,7 +860,7 @@ void engine::adopt(const engine& previous, timestamp now, engine_output& out) {
   s_->last_now = std::max(now, p.last_now);
   now = s_->last_now;
   s_->begun = true;
-  s_->restore(previous.snapshot());
+  s_->restore(previous.snapshot(), false);
   // Carry readings over by (topic, field) so a reload neither waits for fresh data
   // nor treats the zones as unknown.
   for (input_slot& s : s_->slots) {
