@@ -10,6 +10,7 @@
 
 #include "dewmargin/config.h"
 #include "dewmargin/engine.h"
+#include "dewmargin/tick_driver.h"
 
 namespace dewmargin::testing_support {
 
@@ -85,13 +86,12 @@ struct published {
 class engine_driver {
  public:
   explicit engine_driver(site_config cfg, std::int64_t start_s = 1'800'000'000, const restored_state& restored = {})
-      : engine_(std::move(cfg)), now_(from_unix_ms(start_s * 1000)) {
+      : engine_(std::move(cfg)), now_(from_unix_ms(start_s * 1000)), ticks_(now_) {
     engine_.begin(now_, restored, out_);
     collect();
-    next_tick_ = now_ + std::chrono::seconds(1);
   }
 
-  // Advances simulated time by `seconds`, ticking once per second, then delivers.
+  // Advances simulated time by `seconds`, ticking by the core's rule (tick_driver.h), then delivers.
   void at(double seconds_from_now, const std::string& topic, const std::string& payload) {
     advance(seconds_from_now);
     engine_.on_message(topic, payload, now_, out_);
@@ -100,11 +100,10 @@ class engine_driver {
   void send(const std::string& topic, const std::string& payload) { at(0, topic, payload); }
   void advance(double seconds) {
     const timestamp until = now_ + std::chrono::milliseconds(static_cast<std::int64_t>(seconds * 1000.0));
-    while (next_tick_ <= until) {
-      engine_.tick(next_tick_, out_);
+    ticks_.advance_to(until, [this](timestamp at) {
+      engine_.tick(at, out_);
       collect();
-      next_tick_ += std::chrono::seconds(1);
-    }
+    });
     now_ = until;
   }
   // Feeds a full set of readings for a zone-1/zone-2 site in one go.
@@ -179,7 +178,7 @@ class engine_driver {
   engine_output stored_;
   std::vector<published> log_;
   timestamp now_;
-  timestamp next_tick_;
+  tick_driver ticks_;
 };
 
 }  // namespace dewmargin::testing_support
