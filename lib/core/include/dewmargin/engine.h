@@ -60,14 +60,14 @@ class engine {
   void flush(timestamp now, engine_output& out);
 
   // Config reload: take over the previous engine's last readings (by topic and field),
-  // alarms, acknowledgements, shelving, valves and setpoints (by id). Call instead of
-  // begin().
+  // alarms, acknowledgements, shelving, bands, valves with their reopen timers, the current
+  // minute's samples and setpoints (by id). Call instead of begin().
   void adopt(const engine& previous, timestamp now, engine_output& out);
 
   // Exact topics of every input, plus <prefix>/cmd/#.
   [[nodiscard]] std::vector<std::string> subscriptions() const;
   [[nodiscard]] const site_config& config() const;
-  [[nodiscard]] const engine_counters& counters() const;
+  [[nodiscard]] engine_counters counters() const;
   [[nodiscard]] restored_state snapshot() const;
 
   // Topic helpers shared with the shell.
