@@ -3,6 +3,7 @@
 // time and keeps what it published — shared by the engine tests.
 #include <cmath>
 #include <cstdio>
+#include <memory>
 #include <nlohmann/json.hpp>
 #include <string>
 #include <utility>
@@ -86,22 +87,31 @@ struct published {
 class engine_driver {
  public:
   explicit engine_driver(site_config cfg, std::int64_t start_s = 1'800'000'000, const restored_state& restored = {})
-      : engine_(std::move(cfg)), now_(from_unix_ms(start_s * 1000)), ticks_(now_) {
-    engine_.begin(now_, restored, out_);
+      : engine_(std::make_unique<engine>(std::move(cfg))), now_(from_unix_ms(start_s * 1000)), ticks_(now_) {
+    engine_->begin(now_, restored, out_);
+    collect();
+  }
+
+  // A config reload, as the service does it: a new engine adopts the running one; time and
+  // ticks go on.
+  void reload(site_config cfg) {
+    auto fresh = std::make_unique<engine>(std::move(cfg));
+    fresh->adopt(*engine_, now_, out_);
+    engine_ = std::move(fresh);
     collect();
   }
 
   // Advances simulated time by `seconds`, ticking by the core's rule (tick_driver.h), then delivers.
   void at(double seconds_from_now, const std::string& topic, const std::string& payload) {
     advance(seconds_from_now);
-    engine_.on_message(topic, payload, now_, out_);
+    engine_->on_message(topic, payload, now_, out_);
     collect();
   }
   void send(const std::string& topic, const std::string& payload) { at(0, topic, payload); }
   void advance(double seconds) {
     const timestamp until = now_ + std::chrono::milliseconds(static_cast<std::int64_t>(seconds * 1000.0));
     ticks_.advance_to(until, [this](timestamp at) {
-      engine_.tick(at, out_);
+      engine_->tick(at, out_);
       collect();
     });
     now_ = until;
@@ -160,7 +170,7 @@ class engine_driver {
   }
   const std::vector<published>& log() const { return log_; }
   const engine_output& stored() const { return stored_; }
-  engine& core() { return engine_; }
+  engine& core() { return *engine_; }
   timestamp now() const { return now_; }
 
  private:
@@ -173,7 +183,7 @@ class engine_driver {
     out_.clear();
   }
 
-  engine engine_;
+  std::unique_ptr<engine> engine_;
   engine_output out_;
   engine_output stored_;
   std::vector<published> log_;
