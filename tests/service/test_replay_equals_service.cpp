@@ -6,6 +6,7 @@
 #include <gtest/gtest.h>
 
 #include <fstream>
+#include <iostream>
 #include <set>
 #include <string>
 #include <vector>
@@ -22,8 +23,12 @@ constexpr std::int64_t k_t0_s = 1'784'030'400;  // 2026-07-14T12:00:00Z
 
 std::string event_time_config(const std::string& broker_uri, const std::filesystem::path& db) {
   return "site: replay-vs-service\n"
-         "broker: { uri: " + broker_uri + ", client_id: dewmargin-replay-vs-service, keepalive_s: 5 }\n"
-         "storage: { path: " + db.string() + " }\n"
+         "broker: { uri: " +
+         broker_uri +
+         ", client_id: dewmargin-replay-vs-service, keepalive_s: 5 }\n"
+         "storage: { path: " +
+         db.string() +
+         " }\n"
          "publish: { prefix: dm, min_interval_s: 5 }\n"
          "clock: { source: readings, field: /ts }\n"
          "defaults: { margin_warn_k: 2.0, margin_alarm_k: 1.0, hysteresis_k: 0.3, confirm_s: 30, stale_after_s: 90 }\n"
@@ -46,7 +51,7 @@ std::string event_time_config(const std::string& broker_uri, const std::filesyst
 }
 
 struct recorded {
-  std::int64_t t_s;     // seconds after k_t0_s
+  std::int64_t t_s;  // seconds after k_t0_s
   std::string topic;
   std::string payload;  // readings carry their own "ts"; commands and junk carry none
 };
@@ -67,8 +72,8 @@ std::vector<recorded> recorded_stream() {
     s.push_back({t, "r/a/surface", value(t, surface)});
   };
   const auto room_b = [&](std::int64_t t, double temp, double rh) {
-    s.push_back({t, "r/b/env", R"({"ts":")" + iso(t) + R"(","t":)" + std::to_string(temp) + R"(,"rh":)" +
-                                   std::to_string(rh) + "}"});
+    s.push_back({t, "r/b/env",
+                 R"({"ts":")" + iso(t) + R"(","t":)" + std::to_string(temp) + R"(,"rh":)" + std::to_string(rh) + "}"});
   };
   s.push_back({0, "r/a/window", R"({"ts":")" + iso(0) + R"(","state":"closed"})"});
   for (std::int64_t t = 0; t <= 720; t += 20) {
@@ -160,6 +165,7 @@ TEST(ReplayEqualsService, OneRecordedStreamGivesTheSameEventsInBothWays) {
   const auto got = service_events();
   EXPECT_EQ(service.stop(), 0);
 
+  std::cout << "[ replay=service ] " << stream.size() << " messages, " << expected.size() << " events each way\n";
   ASSERT_EQ(got.size(), expected.size()) << service.log_text();
   for (std::size_t i = 0; i < expected.size(); ++i) {
     EXPECT_EQ(got[i], expected[i]) << "event " << i;

@@ -1,6 +1,6 @@
-#include "dewmargin/command_guard.h"
-
 #include <gtest/gtest.h>
+
+#include "dewmargin/command_guard.h"
 
 namespace dewmargin {
 namespace {
@@ -31,7 +31,7 @@ TEST(CommandGuard, AdmitsAtTheCommandRateAndCountsTheRest) {
   command_guard g;
   int admitted = 0;
   for (int i = 0; i <= 1000; ++i) admitted += g.admit(at_ms(i)) ? 1 : 0;  // 1,000 a second
-  EXPECT_EQ(admitted, 20 + 10);  // the burst, then 10 a second
+  EXPECT_EQ(admitted, 20 + 10);                                           // the burst, then 10 a second
   EXPECT_EQ(g.dropped(), 971u);
 }
 

@@ -1,6 +1,6 @@
-#include "dewmargin/dehumidifier_request.h"
-
 #include <gtest/gtest.h>
+
+#include "dewmargin/dehumidifier_request.h"
 
 namespace dewmargin {
 namespace {

@@ -50,7 +50,8 @@ std::string order_text(const std::vector<reading>& order) {
 TEST(EngineRestart, RestoredAcknowledgedAlarmIsKeptWhateverOrderTheReadingsComeBackIn) {
   std::vector<reading> order = {
       {"b/z1/temp", "24"}, {"b/z1/rh", "50"}, {"b/z1/surface", "12.5"}, {"plant/a/supply", "16"}};
-  std::sort(order.begin(), order.end(), [](const reading& a, const reading& b) { return std::string(a.topic) < b.topic; });
+  std::sort(order.begin(), order.end(),
+            [](const reading& a, const reading& b) { return std::string(a.topic) < b.topic; });
   int orders = 0;
   do {
     ++orders;

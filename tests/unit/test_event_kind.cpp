@@ -1,8 +1,7 @@
-#include "dewmargin/event_kind.h"
-
 #include <gtest/gtest.h>
 
 #include "dewmargin/event_emitter.h"
+#include "dewmargin/event_kind.h"
 #include "nlohmann/json.hpp"
 
 namespace dewmargin {

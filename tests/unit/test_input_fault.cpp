@@ -1,13 +1,12 @@
 // Fault kinds read from the real decoder's errors: a change of the decoder's wording shows
 // up here, not as a merged or split flood of `input` events.
-#include "dewmargin/input_fault.h"
-
 #include <gtest/gtest.h>
 
 #include <string>
 #include <vector>
 
 #include "dewmargin/input_decoder.h"
+#include "dewmargin/input_fault.h"
 
 namespace dewmargin {
 namespace {

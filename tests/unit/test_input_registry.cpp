@@ -1,10 +1,10 @@
 // The input registry alone: when an input is awaiting, ok, bad, stale or missing, and the
 // transitions it reports (input_registry.h states the rule).
-#include "dewmargin/input_registry.h"
-
 #include <gtest/gtest.h>
 
 #include <vector>
+
+#include "dewmargin/input_registry.h"
 
 namespace dewmargin {
 namespace {

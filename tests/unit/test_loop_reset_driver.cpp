@@ -1,8 +1,8 @@
 // What drives a loop's setpoint (loop_reset_driver.h). The reset arithmetic itself is
 // tested in test_supply_reset.cpp.
-#include "dewmargin/loop_reset_driver.h"
-
 #include <gtest/gtest.h>
+
+#include "dewmargin/loop_reset_driver.h"
 
 namespace dewmargin {
 namespace {

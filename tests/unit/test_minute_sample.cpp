@@ -1,6 +1,6 @@
-#include "dewmargin/minute_sample.h"
-
 #include <gtest/gtest.h>
+
+#include "dewmargin/minute_sample.h"
 
 namespace dewmargin {
 namespace {

@@ -1,8 +1,8 @@
-#include "dewmargin/tick_driver.h"
-
 #include <gtest/gtest.h>
 
 #include <vector>
+
+#include "dewmargin/tick_driver.h"
 
 namespace dewmargin {
 namespace {

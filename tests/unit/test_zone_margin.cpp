@@ -1,10 +1,9 @@
 // The pure margin computation of a zone. Dew points come from psychro::dew_point_c, checked
 // against the npm package psychrolib in test_psychro.cpp; here only what is done with them.
-#include "dewmargin/zone_margin.h"
-
 #include <gtest/gtest.h>
 
 #include "dewmargin/psychro.h"
+#include "dewmargin/zone_margin.h"
 
 namespace dewmargin {
 namespace {
@@ -69,20 +68,17 @@ TEST(ZoneMargin, NoMarginSaysWhetherItIsAFaultAndWhy) {
       {"air awaiting", with([](zone_readings& r) { r.air_temp_c = awaiting(); }), false, "air temperature awaiting"},
       {"humidity missing", with([](zone_readings& r) { r.humidity_pct = {faulted("missing")}; }), true,
        "no fresh humidity reading"},
-      {"supply barred, surface missing",
-       with([](zone_readings& r) {
+      {"supply barred, surface missing", with([](zone_readings& r) {
          r.surfaces_c = {faulted("missing")};
          r.supply_allowed = false;
        }),
        true, "no fresh surface or supply temperature"},
-      {"surface and supply stale",
-       with([](zone_readings& r) {
+      {"surface and supply stale", with([](zone_readings& r) {
          r.surfaces_c = {faulted("stale")};
          r.supply_c = faulted("stale");
        }),
        true, "no fresh surface or supply temperature"},
-      {"supply not yet reported",
-       with([](zone_readings& r) {
+      {"supply not yet reported", with([](zone_readings& r) {
          r.surfaces_c = {};
          r.supply_c = awaiting();
          r.supply_awaiting = true;

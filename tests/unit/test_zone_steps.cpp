@@ -1,7 +1,7 @@
 // The band-and-alarm step and the valve step that follow a zone's margin.
-#include "dewmargin/zone_steps.h"
-
 #include <gtest/gtest.h>
+
+#include "dewmargin/zone_steps.h"
 
 namespace dewmargin {
 namespace {
@@ -83,7 +83,7 @@ TEST(ZoneValve, CarryOverKeepsPositionAndTheRunningReopenTimer) {
   zone_valve old(600);
   old.restore(valve_position::closed);
   EXPECT_FALSE(old.update({band::safe, false, false, true}, at_s(0)));  // fine since 0 s
-  zone_valve reloaded(300);  // the new config's delay
+  zone_valve reloaded(300);                                             // the new config's delay
   reloaded.carry_over(old);
   EXPECT_EQ(reloaded.position(), valve_position::closed);
   EXPECT_FALSE(reloaded.update({band::safe, false, false, true}, at_s(299)));

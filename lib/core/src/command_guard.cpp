@@ -6,12 +6,18 @@ namespace dewmargin {
 
 const char* rejection_kind_name(rejection_kind k) {
   switch (k) {
-    case rejection_kind::too_large: return "too_large";
-    case rejection_kind::unknown_command: return "unknown_command";
-    case rejection_kind::malformed: return "malformed";
-    case rejection_kind::unknown_zone: return "unknown_zone";
-    case rejection_kind::refused: return "refused";
-    case rejection_kind::rate_limited: return "rate_limited";
+    case rejection_kind::too_large:
+      return "too_large";
+    case rejection_kind::unknown_command:
+      return "unknown_command";
+    case rejection_kind::malformed:
+      return "malformed";
+    case rejection_kind::unknown_zone:
+      return "unknown_zone";
+    case rejection_kind::refused:
+      return "refused";
+    case rejection_kind::rate_limited:
+      return "rate_limited";
   }
   return "malformed";
 }

@@ -23,8 +23,8 @@ dehumidifier_request compute_dehumidifier_request(const std::vector<zone_referen
   char reason[200];
   if (coldest_c) {
     r.request_c = std::clamp(*coldest_c - cfg.offset_k, cfg.min_c, cfg.max_c);
-    std::snprintf(reason, sizeof reason, "coldest %s %.2f °C in %s - %.2f K", source, *coldest_c,
-                  governing->c_str(), cfg.offset_k);
+    std::snprintf(reason, sizeof reason, "coldest %s %.2f °C in %s - %.2f K", source, *coldest_c, governing->c_str(),
+                  cfg.offset_k);
   } else {
     r.request_c = cfg.min_c;
     std::snprintf(reason, sizeof reason, "no surface or supply temperature known: driest request");

@@ -6,8 +6,7 @@
 
 namespace dewmargin {
 
-void engine::state::on_command(const std::string& topic, std::string_view payload, timestamp now,
-                               engine_output& out) {
+void engine::state::on_command(const std::string& topic, std::string_view payload, timestamp now, engine_output& out) {
   const std::string verb = topic.substr(cmd_prefix.size());
   if (!commands.admit(now)) {
     ++counters.rate_limited;
@@ -36,9 +35,15 @@ void engine::state::on_command(const std::string& topic, std::string_view payloa
   const alarm_status before = z.condition.alarm.status();
   std::string why;
   switch (c.verb) {
-    case command_verb::ack: why = z.condition.alarm.acknowledge(); break;
-    case command_verb::shelve: why = z.condition.alarm.shelve(c.minutes, now); break;
-    case command_verb::unshelve: why = z.condition.alarm.unshelve(); break;
+    case command_verb::ack:
+      why = z.condition.alarm.acknowledge();
+      break;
+    case command_verb::shelve:
+      why = z.condition.alarm.shelve(c.minutes, now);
+      break;
+    case command_verb::unshelve:
+      why = z.condition.alarm.unshelve();
+      break;
   }
   if (!why.empty()) return reject(topic, verb, c.zone, rejection_kind::refused, why, now, out);
   ++counters.commands;

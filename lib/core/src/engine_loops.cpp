@@ -57,8 +57,10 @@ void engine::state::publish_loop(loop_rt& l, timestamp now, engine_output& out, 
   const change_gate<5>::values values{sp, inputs.fresh_value(l.supply_slot, now), value_of(l.return_slot),
                                       value_of(l.flow_slot), l.cooling_kw};
   if (!l.gate.should_publish(significant, values, now, cfg.publish.min_interval_s)) return;
-  const loop_state_view v{cfg.site,  l.cfg->id, now,       sp, values[1], values[2], values[3], l.reset.reason(),
-                          setpoint_limit_name(l.reset.limited()), l.cooling_kw};
+  const loop_state_view v{cfg.site,    l.cfg->id,        now,
+                          sp,          values[1],        values[2],
+                          values[3],   l.reset.reason(), setpoint_limit_name(l.reset.limited()),
+                          l.cooling_kw};
   out.messages.push_back(
       {cfg.publish.prefix + "/loop/" + l.cfg->id + "/state", format_loop_state(v), true, message_class::state});
   std::string bare = format_bare_number(sp);

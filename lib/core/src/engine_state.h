@@ -120,8 +120,7 @@ struct engine::state {
   // engine_zones.cpp
   zone_readings readings_of(const zone_rt& z, timestamp now);
   void evaluate_zone(std::size_t zi, timestamp now, engine_output& out);
-  void emit_band_event(const zone_rt& z, const band_step& step, bool switch_active, timestamp now,
-                       engine_output& out);
+  void emit_band_event(const zone_rt& z, const band_step& step, bool switch_active, timestamp now, engine_output& out);
   bool move_valve(zone_rt& z, band b, timestamp now, engine_output& out);
   void expire_shelving(zone_rt& z, timestamp now, engine_output& out);
   void publish_zone(zone_rt& z, timestamp now, engine_output& out, bool force);

@@ -120,16 +120,26 @@ void engine::state::publish_zone(zone_rt& z, timestamp now, engine_output& out, 
   const alarm_status& alarm = z.condition.alarm.status();
   const band current = z.condition.bands.current();
   const valve_position vp = z.valve ? z.valve->position() : valve_position::unset;
-  const bool significant = force || !z.published || current != z.published_band || alarm != z.published_alarm ||
-                           vp != z.published_valve;
+  const bool significant =
+      force || !z.published || current != z.published_band || alarm != z.published_alarm || vp != z.published_valve;
   const std::optional<double> minutes = m.margin_k ? z.trend.minutes_to_condensation(now) : std::nullopt;
   const change_gate<7>::values values{m.dew_point_c, m.air_temp_c, m.rh_pct, m.surface_min_c,
                                       m.supply_c,    m.margin_k,   minutes};
   if (!z.gate.should_publish(significant, values, now, cfg.publish.min_interval_s)) return;
-  const zone_state_view v{cfg.site,        z.cfg->id,  now,      band_name(current), m.dew_point_c,
-                          m.air_temp_c,    m.rh_pct,   m.surface_min_c, m.supply_c,  m.margin_k,
-                          m.margin_source, vp == valve_position::unset ? nullptr : valve_position_name(vp),
-                          alarm,           minutes};
+  const zone_state_view v{cfg.site,
+                          z.cfg->id,
+                          now,
+                          band_name(current),
+                          m.dew_point_c,
+                          m.air_temp_c,
+                          m.rh_pct,
+                          m.surface_min_c,
+                          m.supply_c,
+                          m.margin_k,
+                          m.margin_source,
+                          vp == valve_position::unset ? nullptr : valve_position_name(vp),
+                          alarm,
+                          minutes};
   out.messages.push_back(
       {cfg.publish.prefix + "/zone/" + z.cfg->id + "/state", format_zone_state(v), true, message_class::state});
   z.gate.commit(values, now);

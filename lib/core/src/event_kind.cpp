@@ -4,16 +4,26 @@ namespace dewmargin {
 
 const char* event_kind_name(event_kind k) {
   switch (k) {
-    case event_kind::band: return "band";
-    case event_kind::ack: return "ack";
-    case event_kind::shelve: return "shelve";
-    case event_kind::unshelve: return "unshelve";
-    case event_kind::valve: return "valve";
-    case event_kind::setpoint: return "setpoint";
-    case event_kind::dehumidify: return "dehumidify";
-    case event_kind::input: return "input";
-    case event_kind::rejected: return "rejected";
-    case event_kind::service: return "service";
+    case event_kind::band:
+      return "band";
+    case event_kind::ack:
+      return "ack";
+    case event_kind::shelve:
+      return "shelve";
+    case event_kind::unshelve:
+      return "unshelve";
+    case event_kind::valve:
+      return "valve";
+    case event_kind::setpoint:
+      return "setpoint";
+    case event_kind::dehumidify:
+      return "dehumidify";
+    case event_kind::input:
+      return "input";
+    case event_kind::rejected:
+      return "rejected";
+    case event_kind::service:
+      return "service";
   }
   return "service";
 }

@@ -11,26 +11,39 @@ bool contains(std::string_view text, std::string_view part) { return text.find(p
 
 const char* input_fault_name(input_fault f) {
   switch (f) {
-    case input_fault::empty: return "empty";
-    case input_fault::not_json: return "not_json";
-    case input_fault::missing_field: return "missing_field";
-    case input_fault::wrong_type: return "wrong_type";
-    case input_fault::not_a_number: return "not_a_number";
-    case input_fault::not_finite: return "not_finite";
-    case input_fault::unknown_word: return "unknown_word";
-    case input_fault::out_of_range: return "out_of_range";
-    case input_fault::out_of_order: return "out_of_order";
-    case input_fault::undecodable: return "undecodable";
+    case input_fault::empty:
+      return "empty";
+    case input_fault::not_json:
+      return "not_json";
+    case input_fault::missing_field:
+      return "missing_field";
+    case input_fault::wrong_type:
+      return "wrong_type";
+    case input_fault::not_a_number:
+      return "not_a_number";
+    case input_fault::not_finite:
+      return "not_finite";
+    case input_fault::unknown_word:
+      return "unknown_word";
+    case input_fault::out_of_range:
+      return "out_of_range";
+    case input_fault::out_of_order:
+      return "out_of_order";
+    case input_fault::undecodable:
+      return "undecodable";
   }
   return "undecodable";
 }
 
 input_fault classify_decode_error(const error& e) {
   switch (e.code) {
-    case error_code::not_finite: return input_fault::not_finite;
+    case error_code::not_finite:
+      return input_fault::not_finite;
     case error_code::out_of_range:
-    case error_code::invalid_argument: return input_fault::out_of_range;
-    case error_code::parse_error: break;
+    case error_code::invalid_argument:
+      return input_fault::out_of_range;
+    case error_code::parse_error:
+      break;
   }
   const std::string_view m = e.message;
   if (contains(m, "not valid JSON")) return input_fault::not_json;

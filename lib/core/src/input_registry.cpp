@@ -25,13 +25,15 @@ decoded decode(const input_slot& s, std::string_view payload, timestamp reading_
   decoded d;
   if (s.last_reading && reading_ts < *s.last_reading) {
     d.fault = input_fault::out_of_order;
-    d.problem = make_error(error_code::out_of_range, "reading older than the last one (" +
-                                                         format_iso8601_utc(reading_ts) + " < " +
-                                                         format_iso8601_utc(*s.last_reading) + ")");
+    d.problem =
+        make_error(error_code::out_of_range, "reading older than the last one (" + format_iso8601_utc(reading_ts) +
+                                                 " < " + format_iso8601_utc(*s.last_reading) + ")");
   } else if (is_switch_kind(s.kind)) {
     auto r = decode_switch(payload, *s.cfg);
-    if (r) d.active = r.value();
-    else d.problem = r.err();
+    if (r)
+      d.active = r.value();
+    else
+      d.problem = r.err();
   } else if (auto r = decode_number(payload, *s.cfg, s.kind); !r) {
     d.problem = r.err();
   } else if (auto p = check_plausible(r.value(), s.kind, plausibility); !p) {
@@ -47,11 +49,16 @@ decoded decode(const input_slot& s, std::string_view payload, timestamp reading_
 
 const char* input_status_name(input_status s) {
   switch (s) {
-    case input_status::awaiting: return "awaiting";
-    case input_status::ok: return "ok";
-    case input_status::bad: return "bad";
-    case input_status::stale: return "stale";
-    case input_status::missing: return "missing";
+    case input_status::awaiting:
+      return "awaiting";
+    case input_status::ok:
+      return "ok";
+    case input_status::bad:
+      return "bad";
+    case input_status::stale:
+      return "stale";
+    case input_status::missing:
+      return "missing";
   }
   return "ok";
 }

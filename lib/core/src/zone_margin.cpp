@@ -52,9 +52,9 @@ zone_margin compute_zone_margin(const zone_readings& r) {
 
   // Unknown because of a fault, or only because the first readings have not come yet?
   const bool reference_faulted = !reference_c && (!r.supply_allowed || !r.supply_awaiting);
-  m.unknown_is_fault = !r.waiting && !m.margin_k &&
-                       (r.air_temp_c.faulted || (humidity_faulted && !m.dew_point_c) || reference_faulted ||
-                        !dew_point_error.empty());
+  m.unknown_is_fault =
+      !r.waiting && !m.margin_k &&
+      (r.air_temp_c.faulted || (humidity_faulted && !m.dew_point_c) || reference_faulted || !dew_point_error.empty());
   m.unknown_reason = unknown_reason(r, m, dew_point_error);
   return m;
 }

@@ -17,12 +17,13 @@ band_step step_band_and_alarm(zone_condition& c, const zone_margin& m, bool swit
     c.alarm.on_band(step.after, m.unknown_is_fault);
     c.alarm_condition = is_alarm_band(step.after);
   }
-  step.event_due = step.after != step.before || c.alarm_condition != condition_before || c.alarm.status() != alarm_before;
+  step.event_due =
+      step.after != step.before || c.alarm_condition != condition_before || c.alarm.status() != alarm_before;
   return step;
 }
 
-std::optional<valve_decision> step_valve(zone_valve& v, band b, bool unknown_is_fault,
-                                         std::optional<bool> window_open, timestamp now) {
+std::optional<valve_decision> step_valve(zone_valve& v, band b, bool unknown_is_fault, std::optional<bool> window_open,
+                                         timestamp now) {
   valve_conditions vc;
   vc.zone_band = b;
   vc.unknown_is_fault = unknown_is_fault;

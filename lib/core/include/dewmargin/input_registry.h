@@ -35,17 +35,17 @@ struct input_slot {
   input_kind kind = input_kind::air_temp;
   const input_config* cfg = nullptr;
   input_owner owner;
-  double stale_after_s = 0.0;  // 0: never stale
-  double grace_s = 0.0;        // after start, how long its zone waits for its first reading
+  double stale_after_s = 0.0;             // 0: never stale
+  double grace_s = 0.0;                   // after start, how long its zone waits for its first reading
   std::optional<double> value;            // last good value, core units
   bool active = false;                    // switches: last good state
   std::optional<timestamp> last_reading;  // last good reading
   std::optional<timestamp> last_message;  // last payload of any kind
   input_status status = input_status::awaiting;
-  std::optional<input_fault> fault;       // while bad: the kind of fault last reported
-  std::string bad_reason;                 // while bad: the reason of the first message of that kind
-  std::uint64_t bad_messages = 0;         // bad messages since the input last turned bad
-  unsigned faults_reported = 0;           // while bad: the kinds already reported (a bit each)
+  std::optional<input_fault> fault;  // while bad: the kind of fault last reported
+  std::string bad_reason;            // while bad: the reason of the first message of that kind
+  std::uint64_t bad_messages = 0;    // bad messages since the input last turned bad
+  unsigned faults_reported = 0;      // while bad: the kinds already reported (a bit each)
 
   [[nodiscard]] bool fresh(timestamp now) const;
   // Not fresh, and not merely waiting for its first reading.
@@ -69,9 +69,9 @@ struct input_transition {
 };
 
 struct input_counts {
-  std::uint64_t readings = 0;                 // accepted
-  std::uint64_t bad_readings = 0;             // undecodable, implausible or out of order
-  std::uint64_t suppressed_transitions = 0;   // bad readings that repeated a reported fault
+  std::uint64_t readings = 0;                // accepted
+  std::uint64_t bad_readings = 0;            // undecodable, implausible or out of order
+  std::uint64_t suppressed_transitions = 0;  // bad readings that repeated a reported fault
 };
 
 class input_registry {

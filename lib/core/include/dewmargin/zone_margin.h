@@ -24,21 +24,21 @@ struct zone_readings {
   std::vector<margin_input> humidity_pct;  // at least one in a valid config
   std::vector<margin_input> surfaces_c;
   margin_input supply_c;
-  bool supply_awaiting = false;    // the loop's supply has not reported since start
-  bool supply_allowed = true;      // the supply may stand in for the surfaces
-  bool waiting = false;            // some of the zone's own inputs have not reported yet
+  bool supply_awaiting = false;  // the loop's supply has not reported since start
+  bool supply_allowed = true;    // the supply may stand in for the surfaces
+  bool waiting = false;          // some of the zone's own inputs have not reported yet
 };
 
 struct zone_margin {
   std::optional<double> air_temp_c;
-  std::optional<double> rh_pct;          // of the humidity that gives the highest dew point
+  std::optional<double> rh_pct;  // of the humidity that gives the highest dew point
   std::optional<double> dew_point_c;
   std::optional<double> surface_min_c;
   std::optional<double> supply_c;
   std::optional<double> margin_k;
-  const char* margin_source = nullptr;   // "surface", "supply" or nullptr
-  bool unknown_is_fault = false;         // no margin, because of a fault (not the wait)
-  std::string unknown_reason;            // why there is no margin
+  const char* margin_source = nullptr;  // "surface", "supply" or nullptr
+  bool unknown_is_fault = false;        // no margin, because of a fault (not the wait)
+  std::string unknown_reason;           // why there is no margin
 };
 
 zone_margin compute_zone_margin(const zone_readings& r);

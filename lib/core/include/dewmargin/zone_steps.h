@@ -30,7 +30,7 @@ struct band_step {
 band_step step_band_and_alarm(zone_condition& c, const zone_margin& m, bool switch_active, timestamp now);
 
 // The valve's decision for the band just judged; `window_open` is empty without a contact.
-std::optional<valve_decision> step_valve(zone_valve& v, band b, bool unknown_is_fault,
-                                         std::optional<bool> window_open, timestamp now);
+std::optional<valve_decision> step_valve(zone_valve& v, band b, bool unknown_is_fault, std::optional<bool> window_open,
+                                         timestamp now);
 
 }  // namespace dewmargin
