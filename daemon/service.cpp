@@ -11,6 +11,7 @@
 #include "dewmargin/engine.h"
 #include "dewmargin/mqtt_link.h"
 #include "dewmargin/store_writer.h"
+#include "dewmargin/tick_driver.h"
 #include "dewmargin/version.h"
 #include "logging.h"
 #include "signals.h"
@@ -205,7 +206,7 @@ class service {
     dispatch();
     started_ = true;
     event_now_ = now;
-    next_event_tick_ = now + k_tick;
+    event_ticks_.emplace(now);
   }
 
   // Each message's outputs go out before the next message is taken (alarm latency).
@@ -248,14 +249,12 @@ class service {
     }
   }
 
-  // Ticks once per second of event time passed; a jump of more than an hour ticks once.
+  // Event time drives the tick by the core's one rule (tick_driver.h).
   void advance_event_time(timestamp t) {
-    if (t - next_event_tick_ > std::chrono::hours(1)) next_event_tick_ = t;
-    while (next_event_tick_ <= t) {
-      core_->tick(next_event_tick_, batch_);
+    event_ticks_->advance_to(t, [this](timestamp at) {
+      core_->tick(at, batch_);
       dispatch();
-      next_event_tick_ += k_tick;
-    }
+    });
     event_now_ = t;
   }
 
@@ -341,7 +340,7 @@ class service {
   // Event-time mode (clock.source: readings).
   bool event_time_ = false;
   timestamp event_now_{};
-  timestamp next_event_tick_{};
+  std::optional<tick_driver> event_ticks_;
   std::vector<inbound_message> early_;
 };
 
