@@ -15,7 +15,7 @@ struct run_options {
   double speed = 400.0;             // simulated seconds per wall second; 0: as fast as possible
   double status_every_s = 1800;     // simulated; 0: no status lines
   double wait_service_s = 30.0;     // wall time to wait for the service's "online" status
-  double max_service_lag_s = 30.0;  // simulated; the service may trail the readings this much; 0: no limit
+  double max_service_lag_s = 15.0;  // simulated; the service may trail the readings this much; 0: no limit
   int max_in_flight = 50;           // messages handed to the MQTT client and not yet written out
   double broker_timeout_s = 30.0;   // wall time the broker may take to accept one message
   std::ostream* trace = nullptr;    // true state, one CSV row per zone and simulated minute
@@ -28,7 +28,7 @@ int run_with_broker(simulation& sim, const run_options& o, std::ostream& out, st
 // The baseline: no broker, no service, as fast as it goes.
 int run_offline(simulation& sim, const run_options& o, std::ostream& out);
 
-// "played 2.5 h in 21.3 s of wall time (asked 480x, achieved 423x); ..." for the end of a play.
+// "played 2.50 h in 21.3 s of wall time (asked 480x, achieved 423x); waited ..." for the end of a play.
 std::string pace_text(const pace_report& p);
 
 }  // namespace dewmargin::sim
