@@ -207,6 +207,24 @@ incidents:
                 "7:43: incident 3 (sensor_silent): give 'zone' or 'loop', not both"}));
 }
 
+TEST(SimScenarioFile, TheExampleOfTheDocsReadsAgainstTheClinicConfig) {
+  std::ifstream in(testing::source_path("config/clinic.yaml"));
+  std::ostringstream text;
+  text << in.rdbuf();
+  const auto cfg = load_config_text(text.str(), "config/clinic.yaml");
+  ASSERT_TRUE(cfg.ok());
+  const auto r = load_scenario_file(k_data + "good/clinic-coil-trip.yaml", *cfg.config, "config/clinic.yaml");
+  ASSERT_TRUE(r.ok()) << (r.errors.empty() ? "" : r.errors.front().to_string());
+  EXPECT_EQ(r.house->zones.size(), 6u);
+  EXPECT_DOUBLE_EQ(r.house->zones[1].moisture_g_h.at(12.5 * 3600.0), 1200.0);  // gf-cafe, cooking
+  EXPECT_DOUBLE_EQ(r.house->zones[1].moisture_g_h.at(14 * 3600.0), 0.0);
+  EXPECT_DOUBLE_EQ(r.house->zones[1].design_people, 25.0);
+  EXPECT_DOUBLE_EQ(r.house->zones[1].occupancy.at(14 * 3600.0), 0.2);
+  EXPECT_EQ(r.house->zones[2].surface, surface_kind::wall_panel);
+  EXPECT_DOUBLE_EQ(*r.house->dehumidifiers[0].capacity_kg_h, 30.0);
+  EXPECT_EQ(r.day->incidents.size(), 3u);
+}
+
 TEST(SimScenarioFile, TimesOfDay) {
   struct row {
     const char* text;

@@ -4,6 +4,7 @@
 // setpoints, valve and dehumidifier commands back into its physics, and reports the ground
 // truth: how long each chilled surface was really wet, and how much warning the service gave.
 #include <CLI/CLI.hpp>
+#include <cstdio>
 #include <fstream>
 #include <iostream>
 #include <nlohmann/json.hpp>
@@ -159,8 +160,11 @@ int main(int argc, char** argv) {
     offline.trace = nullptr;  // the trace is the supervised run's
     sim::run_offline(*baseline, offline, std::cout);
     if (!quiet) {
-      std::cout << "dewmargin-sim: without the service: " << baseline->truth().total_condensing_min()
-                << " wet zone-minutes; now with the service" << std::endl;
+      char line[128];
+      std::snprintf(line, sizeof line,
+                    "dewmargin-sim: without the service: %.1f wet zone-minutes; now with the service",
+                    baseline->truth().total_condensing_min());
+      std::cout << line << std::endl;
     }
   }
   auto supervised = make(true);
