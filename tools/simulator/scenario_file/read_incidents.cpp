@@ -161,16 +161,16 @@ std::optional<incident> read_incident(const YAML::Node& node, int number, const 
     src.error(place_of(node), label + " must be a map with 'kind', 'start' and 'end', got " + describe(node));
     return std::nullopt;
   }
-  // The kind first, to name the incident in the other messages.
-  const YAML::Node* kind_node = nullptr;
+  // The kind first, to name the incident in the other messages. (yaml-cpp's iterator hands
+  // out temporaries: keep the text, not a pointer into one.)
+  std::string kind_text;
   for (const auto& kv : node) {
-    if (kv.first.IsScalar() && kv.first.Scalar() == "kind") {
-      kind_node = &kv.second;
+    if (kv.first.IsScalar() && kv.first.Scalar() == "kind" && kv.second.IsScalar()) {
+      kind_text = kv.second.Scalar();
       break;
     }
   }
-  const std::string context =
-      label + (kind_node && kind_node->IsScalar() ? " (" + kind_node->Scalar() + ")" : std::string());
+  const std::string context = label + (kind_text.empty() ? std::string() : " (" + kind_text + ")");
   const fields f(node, context, k_all_keys, src);
   f.require("kind");
   f.require("start");
