@@ -18,6 +18,7 @@
 
 #include "dewmargin/config_loader.h"
 #include "dewmargin/engine.h"
+#include "dewmargin/tick_driver.h"
 #include "model/simulation.h"
 #include "scenario_file/scenario_loader.h"
 
@@ -80,13 +81,12 @@ inline void run_through_core(simulation& sim, const site_config& cfg) {
   sim.begin(out);
   core.begin(sim.now(), restored_state{}, batch);
   route();
-  timestamp next_tick = sim.now() + std::chrono::seconds(1);
+  tick_driver ticks(sim.now());
   const auto deliver = [&](timestamp now) {
-    while (next_tick <= now) {
-      core.tick(next_tick, batch);
+    ticks.advance_to(now, [&](timestamp at) {
+      core.tick(at, batch);
       route();
-      next_tick += std::chrono::seconds(1);
-    }
+    });
     for (const auto& m : out) {
       core.on_message(m.topic, m.payload, now, batch, m.retained);
       route();

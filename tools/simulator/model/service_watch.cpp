@@ -2,6 +2,8 @@
 
 #include <nlohmann/json.hpp>
 
+#include "dewmargin/event_kind.h"
+
 namespace dewmargin::sim {
 namespace {
 
@@ -119,29 +121,43 @@ void service_watch::on_event(std::string_view payload, double now_s) {
   const auto j = nlohmann::json::parse(payload.begin(), payload.end(), nullptr, false);
   if (j.is_discarded() || !j.is_object()) return;
   const auto ts_s = take_time(text_at(j, "ts"), now_s);
-  const std::string kind = text_at(j, "kind");
+  const std::optional<event_kind> kind = parse_event_kind(text_at(j, "kind"));
   const std::string to = text_at(j, "to");
-  if (kind == "band") {
-    ++tally_.band_events;
-    ++tally_.bands_entered[to];
-  } else if (kind == "ack") {
-    ++tally_.acknowledged;
-  } else if (kind == "valve") {
-    if (to == "closed") ++tally_.valves_closed;
-    if (to == "open") ++tally_.valves_opened;
-  } else if (kind == "setpoint") {
-    ++tally_.setpoint_events;
-  } else if (kind == "dehumidify") {
-    ++tally_.dehumidify_events;
-  } else if (kind == "input") {
-    ++tally_.input_events;
-  } else if (kind == "rejected") {
-    ++tally_.rejected;
+  if (kind) {
+    switch (*kind) {
+      case event_kind::band:
+        ++tally_.band_events;
+        ++tally_.bands_entered[to];
+        break;
+      case event_kind::ack:
+        ++tally_.acknowledged;
+        break;
+      case event_kind::valve:
+        if (to == "closed") ++tally_.valves_closed;
+        if (to == "open") ++tally_.valves_opened;
+        break;
+      case event_kind::setpoint:
+        ++tally_.setpoint_events;
+        break;
+      case event_kind::dehumidify:
+        ++tally_.dehumidify_events;
+        break;
+      case event_kind::input:
+        ++tally_.input_events;
+        break;
+      case event_kind::rejected:
+        ++tally_.rejected;
+        break;
+      case event_kind::shelve:
+      case event_kind::unshelve:
+      case event_kind::service:
+        break;
+    }
   }
   watched_zone* z = find(text_at(j, "zone"));
   const auto a = j.find("alarm");
   if (z && a != j.end() && a->is_object()) {
-    if (kind == "band") z->band = to;
+    if (kind == event_kind::band) z->band = to;
     take_alarm(*z, flag_at(*a, "active", false), flag_at(*a, "acknowledged", true), now_s, ts_s);
   }
 }
