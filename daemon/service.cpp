@@ -191,7 +191,9 @@ class service {
   // in the log and as a service event, both at most once per interval.
   void report_contained(const containment_report& r) {
     std::string text = "message on " + r.topic + " dropped: " + r.error;
-    if (r.dropped_since_last > 0) text += " (" + std::to_string(r.dropped_since_last) + " more dropped since the last report)";
+    if (r.dropped_since_last > 0) {
+      text += " (" + std::to_string(r.dropped_since_last) + " more dropped since the last report)";
+    }
     log_->error("{}", text);
     if (started_) core_->service_event(service_now(), "running", "running", text, batch_);
   }
