@@ -25,7 +25,10 @@ constexpr auto k_tick = std::chrono::seconds(1);
 constexpr auto k_max_wait = std::chrono::milliseconds(200);  // signal and watchdog latency
 constexpr int k_burst = 256;
 constexpr std::size_t k_max_early_messages = 1000;
-constexpr auto k_store_retry = std::chrono::seconds(60);
+// Opening the history database again after a failure: soon at first (a lock or a full disk
+// clears quickly), then less often.
+constexpr auto k_store_retry_first = std::chrono::seconds(5);
+constexpr auto k_store_retry_max = std::chrono::seconds(60);
 constexpr auto k_stop_store_timeout = std::chrono::milliseconds(2000);
 constexpr auto k_stop_link_timeout = std::chrono::milliseconds(2000);
 // Repeated problems, contained message faults and held-back event lines: at most one line
@@ -65,7 +68,7 @@ class service {
   int run() {
     auto loaded = load_config_file(options_.config_path);
     if (!loaded.ok()) {
-      for (const auto& d : loaded.errors) log_->error("{}", d.to_string());
+      for (const auto& d : loaded.errors) log_->error("{}", escape_for_report(d.to_string(), 400));
       return 2;
     }
     if (!apply_log_level(*loaded.config)) return 2;
@@ -144,14 +147,17 @@ class service {
     auto opened = store_writer::open(std::move(opts));
     if (!opened) {
       // Supervision matters more than history: go on without the disk, retry later.
-      problems_.report(spdlog::level::err,
-                       opened.err().message + "; running without history, retrying every 60 s");
+      problems_.report(spdlog::level::err, opened.err().message + "; running without history, trying again in " +
+                                               std::to_string(store_retry_.count()) + " s");
       store_open_failed_ = true;
+      next_store_retry_ = last_store_attempt_ + store_retry_;
+      store_retry_ = std::min<std::chrono::seconds>(store_retry_ * 2, k_store_retry_max);
       return;
     }
     store_ = std::make_unique<store_writer>(std::move(opened.value()));
     if (store_open_failed_) log_->info("history: {} opened, writing again", store_->path().string());
     store_open_failed_ = false;
+    store_retry_ = k_store_retry_first;
     store_seen_ = store_->counters();
   }
 
@@ -237,7 +243,7 @@ class service {
         next_tick += k_tick;
         // After a stall (suspend, debugger) do not replay the missed ticks one by one.
         if (after - next_tick > std::chrono::seconds(5)) next_tick = after + k_tick;
-        if (!store_ && after - last_store_attempt_ >= k_store_retry) open_store();
+        if (!store_ && after >= next_store_retry_) open_store();
         watch_store();
         watch_drops(after);
       }
@@ -333,8 +339,10 @@ class service {
     auto loaded = load_config_file(options_.config_path);
     const timestamp now = service_now();
     if (!loaded.ok()) {
-      for (const auto& d : loaded.errors) log_->error("{}", d.to_string());
-      const std::string first = loaded.errors.empty() ? std::string("unknown error") : loaded.errors.front().to_string();
+      for (const auto& d : loaded.errors) log_->error("{}", escape_for_report(d.to_string(), 400));
+      // The file may hold anything (binary junk): escaped before it goes into an event.
+      const std::string first =
+          loaded.errors.empty() ? std::string("unknown error") : escape_for_report(loaded.errors.front().to_string());
       core_->service_event(now, "running", "running",
                            "reload rejected (" + std::to_string(loaded.errors.size()) + " errors; first: " + first +
                                "); the previous config stays in force",
@@ -403,6 +411,8 @@ class service {
   std::unique_ptr<store_writer> store_;
   std::unique_ptr<mqtt_link> link_;
   std::chrono::steady_clock::time_point last_store_attempt_{};
+  std::chrono::steady_clock::time_point next_store_retry_{};
+  std::chrono::seconds store_retry_ = k_store_retry_first;
   bool store_open_failed_ = false;
   store_writer_counters store_seen_{};
   std::optional<std::uint64_t> store_failing_since_;  // error count before the failures began
