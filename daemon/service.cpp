@@ -256,7 +256,7 @@ class service {
       notifier_.keep_alive(after);
       switch (signals_.poll()) {
         case signal_request::none: break;
-        case signal_request::reload: reload(); break;
+        case signal_request::reload: reload_contained(); break;
         case signal_request::stop: return;
       }
     }
@@ -329,6 +329,29 @@ class service {
       next_event_tick_ += k_tick;
     }
     event_now_ = t;
+  }
+
+  // A config file comes from outside: a fault while taking it in (a value the core cannot
+  // publish) rejects the reload as long as the running core is still the old one. Once the
+  // new core is in place there is nothing to go back to: the fault stops the service.
+  void reload_contained() {
+    const engine* before = core_.get();
+    try {
+      reload();
+    } catch (const std::bad_alloc&) {
+      throw;
+    } catch (const std::logic_error&) {
+      throw;
+    } catch (const std::exception& e) {
+      if (core_.get() != before) throw;
+      batch_.clear();  // what the new config produced before the fault must not go out
+      const std::string why = escape_for_report(e.what());
+      log_->error("reload of {} failed: {}; the previous config stays in force", options_.config_path.string(), why);
+      core_->service_event(service_now(), "running", "running",
+                           "reload rejected (" + why + "); the previous config stays in force", batch_);
+      dispatch();
+      notifier_.ready("reload rejected; previous config in force");
+    }
   }
 
   timestamp service_now() const { return event_time_ ? event_now_ : wall_now(); }
