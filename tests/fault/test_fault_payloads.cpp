@@ -181,7 +181,7 @@ TEST(FaultPayloads, MalformedPayloadsAndCommandsChangeNothingAndAreNamed) {
           return bad.expect == outcome::input_event ? is_event(m, "input", bad.topic, "bad")
                                                     : is_event(m, "rejected", bad.topic);
         },
-        1s, from);
+        2s, from);
     const std::string changes = state_changes(site, from);
     const bool up = site.service->running();
     row.survived = up ? 1 : 0;
@@ -218,7 +218,7 @@ TEST(FaultPayloads, MalformedPayloadsAndCommandsChangeNothingAndAreNamed) {
     from = site.watcher->size();
     site.watcher->publish("r/a/wet", junk);
     const auto event = site.watcher->wait_for(
-        "dm/events", [&](const received_message& m) { return is_event(m, "input", "r/a/wet", "bad"); }, 1s, from);
+        "dm/events", [&](const received_message& m) { return is_event(m, "input", "r/a/wet", "bad"); }, 2s, from);
     const std::string changes = state_changes(site, from);
     const bool up = site.service->running();
     row.survived = up ? 1 : 0;
