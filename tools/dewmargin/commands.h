@@ -4,6 +4,7 @@
 #include <iosfwd>
 #include <optional>
 #include <string>
+#include <vector>
 
 namespace dewmargin::cli {
 
@@ -39,7 +40,7 @@ struct history_options {
   std::string zone;
   std::string since_text;
   std::string until_text;
-  std::string kind;
+  std::vector<std::string> kinds;  // --kind, repeated or comma-separated; empty: every kind
   std::string format = "table";  // table | csv | json
 };
 int run_history(const history_options& options, std::ostream& out, std::ostream& err);

@@ -75,9 +75,10 @@ int main(int argc, char** argv) {
   history->add_option("--since", hist.since_text, "Only events at or after TIME")->type_name("TIME");
   history->add_option("--until", hist.until_text, "Only events before TIME; a bare date means up to the end of that day")
       ->type_name("TIME");
-  history->add_option("--kind", hist.kind,
-                      "Only events of this kind: band, ack, shelve, unshelve, valve, setpoint, dehumidify, input, "
-                      "rejected, service")
+  history->add_option("--kind", hist.kinds,
+                      "Only events of these kinds (repeat it, or a comma list): band, ack, shelve, unshelve, valve, "
+                      "setpoint, dehumidify, input, rejected, service")
+      ->delimiter(',')
       ->type_name("KIND");
   history->add_option("--format", hist.format, "table (default), csv or json")->type_name("FORMAT");
   history->footer(std::string(
@@ -89,10 +90,11 @@ int main(int argc, char** argv) {
                       "  table  aligned columns: time, subject, kind, from → to, details (key=value)\n"
                       "  csv    RFC 4180 with CRLF line ends; header ts,subject_type,subject,kind,from,to,details;\n"
                       "         details is a JSON object of the event's other fields\n"
-                      "  json   one JSON array of the stored event objects (as published), one per line\n"
-                      "Events are ordered by time, then by the order they were stored.\n\n"
+                      "  json   one stored event object (as published) per line (JSON Lines)\n"
+                      "Events are ordered by time, then by the order they were stored, and streamed: a year of\n"
+                      "events is never held in memory.\n\n"
                       "Exit codes: 0 ok, also when nothing matches (table: \"no events\", csv: the header only,\n"
-                      "json: []); 1 the database is missing, unreadable, corrupt, not a dewmargin history\n"
+                      "json: nothing); 1 the database is missing, unreadable, corrupt, not a dewmargin history\n"
                       "database, or of a newer schema; 2 bad usage (bad TIME, unknown kind or format).\n\n"
                       "Example:\n"
                       "  dewmargin history --db /var/lib/dewmargin/history.db --kind band --since 2026-07-01 --format csv\n\n") +
