@@ -45,4 +45,15 @@ struct history_options {
 };
 int run_history(const history_options& options, std::ostream& out, std::ostream& err);
 
+// `dewmargin report`: a self-contained HTML review of a history database.
+struct report_options {
+  std::string db;
+  std::string out;
+  std::string config_file;  // optional: thresholds, loops, site name
+  std::string since_text;
+  std::string until_text;
+  std::vector<std::string> zones;
+};
+int run_report(const report_options& options, std::ostream& out, std::ostream& err);
+
 }  // namespace dewmargin::cli

@@ -76,14 +76,16 @@ class history_reader::impl {
   }
 
   store_result<std::size_t> for_each_event(const event_filter& f,
-                                           const std::function<void(const stored_event&)>& visit) const {
+                                           const std::function<void(const stored_event&)>& visit,
+                                           bool latest_only = false) const {
     where_clause where;
     if (f.subject_id) where.add("subject_id =", *f.subject_id);
     if (!f.kinds.empty()) where.add_in("kind", f.kinds);
     if (f.since) where.add("ts_ms >=", to_unix_ms(*f.since));
     if (f.until) where.add("ts_ms <", to_unix_ms(*f.until));
     const std::string sql =
-        "SELECT id, ts_ms, subject_type, subject_id, kind, json FROM events" + where.sql() + " ORDER BY ts_ms, id";
+        "SELECT id, ts_ms, subject_type, subject_id, kind, json FROM events" + where.sql() +
+        (latest_only ? " ORDER BY ts_ms DESC, id DESC LIMIT 1" : " ORDER BY ts_ms, id");
     statement stmt;
     int rc = statement::prepare(db_.get(), sql, stmt);
     if (rc != SQLITE_OK) return failure("querying events", rc);
@@ -284,6 +286,13 @@ store_result<std::vector<stored_event>> history_reader::events(const event_filte
   auto r = impl_->for_each_event(filter, [&](const stored_event& e) { rows.push_back(e); });
   if (!r.ok()) return r.err();
   return rows;
+}
+
+store_result<std::optional<stored_event>> history_reader::last_event(const event_filter& filter) const {
+  std::optional<stored_event> last;
+  auto r = impl_->for_each_event(filter, [&](const stored_event& e) { last = e; }, true);
+  if (!r.ok()) return r.err();
+  return last;
 }
 
 store_result<std::size_t> history_reader::for_each_sample(const sample_filter& filter,

@@ -50,6 +50,8 @@ class history_reader {
   [[nodiscard]] store_result<std::size_t> for_each_event(const event_filter& filter,
                                                          const std::function<void(const stored_event&)>& visit) const;
   [[nodiscard]] store_result<std::vector<stored_event>> events(const event_filter& filter) const;
+  // The latest event that matches (by ts, then id); nullopt when none does.
+  [[nodiscard]] store_result<std::optional<stored_event>> last_event(const event_filter& filter) const;
 
   // Samples ordered by zone, then minute.
   [[nodiscard]] store_result<std::size_t> for_each_sample(const sample_filter& filter,

@@ -1,0 +1,38 @@
+#pragma once
+// Chart series: the period cut into at most N buckets of a round length (1 min … 1 day), each
+// bucket the merge of the periods that start in it. Merging keeps the minimum margin, so a
+// year drawn in 500 points still shows every dip (see zone_period).
+#include <chrono>
+#include <vector>
+
+#include "dewmargin/zone_period.h"
+
+namespace dewmargin::report {
+
+struct series_layout {
+  timestamp since;
+  timestamp until;
+  std::chrono::minutes bucket{1};
+  std::size_t count = 0;
+  [[nodiscard]] timestamp start_of(std::size_t i) const { return since + bucket * static_cast<std::int64_t>(i); }
+  // The bucket a time falls in, clamped into [0, count).
+  [[nodiscard]] std::size_t index_of(timestamp t) const;
+};
+
+// The smallest round bucket that cuts [since, until) into at most max_buckets.
+[[nodiscard]] series_layout layout_for(timestamp since, timestamp until, std::size_t max_buckets);
+
+class zone_series {
+ public:
+  zone_series(std::string zone, const series_layout& layout);
+  void add(const zone_period& p);  // periods of one zone, in time order
+  [[nodiscard]] const std::vector<zone_period>& buckets() const { return buckets_; }
+  [[nodiscard]] const zone_period& total() const { return total_; }  // the whole period merged
+
+ private:
+  series_layout layout_;
+  std::vector<zone_period> buckets_;
+  zone_period total_;
+};
+
+}  // namespace dewmargin::report
