@@ -45,7 +45,7 @@ if [[ -z $chromium_bin ]]; then
   echo "test_report: SKIPPED the rendering check: chromium is not installed (Debian package chromium)"
 else
   timeout 90 "$chromium_bin" --headless --no-sandbox --disable-gpu --disable-background-networking \
-    --disable-component-update --disable-sync --no-first-run --user-data-dir="$work/chromium" \
+    --disable-component-update --disable-sync --no-first-run --hide-scrollbars --user-data-dir="$work/chromium" \
     --screenshot="$work/review.png" --window-size=1240,1754 "file://$work/review.html" \
     >"$work/chromium.log" 2>&1 || fail "chromium failed: $(tail -5 "$work/chromium.log")"
   python3 - "$work/review.png" <<'PY' || fail "chromium's screenshot is not a page"

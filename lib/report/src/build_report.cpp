@@ -18,8 +18,14 @@ std::string reason_pattern(const std::string& reason) {
   for (std::size_t i = 0; i < reason.size(); ++i) {
     const char c = reason[i];
     const bool digit = std::isdigit(static_cast<unsigned char>(c)) != 0;
-    const bool part_of_number = digit || ((c == '.' || c == '-') && i + 1 < reason.size() &&
-                                          std::isdigit(static_cast<unsigned char>(reason[i + 1])) != 0);
+    // A number starts after a space or at the start ("15.32", "-0.5"); digits inside a word
+    // (a zone id such as "l2-north") stay.
+    const bool starts_number =
+        (i == 0 || reason[i - 1] == ' ' || reason[i - 1] == '(') &&
+        (digit || (c == '-' && i + 1 < reason.size() && std::isdigit(static_cast<unsigned char>(reason[i + 1])) != 0));
+    const bool part_of_number =
+        starts_number || (in_number && (digit || (c == '.' && i + 1 < reason.size() &&
+                                                  std::isdigit(static_cast<unsigned char>(reason[i + 1])) != 0)));
     if (part_of_number) {
       if (!in_number) out += '#';
       in_number = true;
@@ -232,6 +238,15 @@ store_result<report_data> build_report(const history_reader& reader, const repor
     }
     d.zones.push_back(std::move(z));
   }
+  // Worst first: the longest time condensing, then the lowest margin, then the id.
+  std::stable_sort(d.zones.begin(), d.zones.end(), [](const zone_report& a, const zone_report& b) {
+    const double ca = a.review.band_s[static_cast<std::size_t>(band_severity(band::condensing))];
+    const double cb = b.review.band_s[static_cast<std::size_t>(band_severity(band::condensing))];
+    if (ca != cb) return ca > cb;
+    const double ma = a.series.total().min_margin_k.value_or(1e9);
+    const double mb = b.series.total().min_margin_k.value_or(1e9);
+    return ma < mb;
+  });
   std::vector<zone_review> for_figures;
   for_figures.reserve(d.zones.size());
   for (const auto& z : d.zones) for_figures.push_back(z.review);

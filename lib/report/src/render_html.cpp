@@ -131,7 +131,7 @@ class svg_chart {
       out += "<line class=\"grid\" x1=\"" + num(k_left) + "\" y1=\"" + num(py) + "\" x2=\"" + num(k_left + k_plot_w) +
              "\" y2=\"" + num(py) + "\"/>";
       out += "<text class=\"tick\" x=\"" + num(k_left - 4) + "\" y=\"" + num(py + 3) + "\" text-anchor=\"end\">" +
-             fmt(step < 1.0 ? "%.1f" : "%.0f", v) + "</text>\n";
+             fmt(step < 1.0 ? "%.1f" : "%.0f", std::abs(v) < 1e-9 ? 0.0 : v) + "</text>\n";
     }
     out += "<text class=\"unit\" x=\"2\" y=\"" + num(s.top + 8) + "\">" + unit + "</text>\n";
     return out;
@@ -184,7 +184,7 @@ std::optional<band> shaded_band(const zone_period& b) {
 }
 
 std::string margin_chart(const report_data& d, const zone_report& z) {
-  constexpr double k_height = 190.0;
+  constexpr double k_height = 160.0;
   constexpr double k_lane = 16.0;  // marker lane at the top
   const svg_chart c(d.layout, k_height);
   const auto& buckets = z.series.buckets();
@@ -262,7 +262,7 @@ std::string margin_chart(const report_data& d, const zone_report& z) {
 }
 
 std::string temperature_chart(const report_data& d, const zone_report& z) {
-  constexpr double k_height = 110.0;
+  constexpr double k_height = 90.0;
   const svg_chart c(d.layout, k_height);
   const auto& buckets = z.series.buckets();
   std::optional<double> lo;
@@ -286,7 +286,7 @@ std::string temperature_chart(const report_data& d, const zone_report& z) {
 }
 
 std::string loop_chart(const report_data& d, const loop_review& l, const std::optional<setpoint_config>& sp) {
-  constexpr double k_height = 130.0;
+  constexpr double k_height = 110.0;
   const svg_chart c(d.layout, k_height);
   double lo = sp ? sp->min_c - 1.0 : 14.0;
   double hi = sp ? sp->max_c + 1.0 : 22.0;
@@ -353,7 +353,9 @@ const char* k_css = R"css(
 @page { size: A4; margin: 12mm 12mm 14mm 12mm; }
 * { box-sizing: border-box; }
 body { font-family: "DejaVu Sans", "Liberation Sans", Arial, sans-serif; font-size: 9.5pt; color: #1d1d1d;
-       margin: 0 auto; max-width: 186mm; line-height: 1.35; -webkit-print-color-adjust: exact; print-color-adjust: exact; }
+       margin: 0 auto; padding: 0 18px; max-width: 1180px; line-height: 1.35;
+       -webkit-print-color-adjust: exact; print-color-adjust: exact; }
+@media print { body { max-width: none; padding: 0; } }
 h1 { font-size: 17pt; margin: 0 0 1mm 0; letter-spacing: 0.2px; }
 h1 .mark { display: inline-block; width: 9pt; height: 9pt; border: 2.5pt solid #35578f; border-radius: 50%;
            margin-right: 5pt; vertical-align: 1pt; }
@@ -512,6 +514,21 @@ std::string mould_table(const report_data& d) {
   return out;
 }
 
+// The thresholds when every zone has the same ones (one line instead of a table).
+std::optional<band_thresholds> uniform_thresholds(const report_data& d) {
+  if (d.zones.empty() || !d.zones.front().thresholds) return std::nullopt;
+  const band_thresholds& f = *d.zones.front().thresholds;
+  for (const auto& z : d.zones) {
+    if (!z.thresholds) return std::nullopt;
+    const band_thresholds& t = *z.thresholds;
+    if (t.margin_warn_k != f.margin_warn_k || t.margin_alarm_k != f.margin_alarm_k || t.hysteresis_k != f.hysteresis_k ||
+        t.confirm_s != f.confirm_s || t.stale_after_s != f.stale_after_s) {
+      return std::nullopt;
+    }
+  }
+  return f;
+}
+
 }  // namespace
 
 std::string verdict_text(const report_data& d) {
@@ -587,6 +604,14 @@ std::string render_html(const report_data& d) {
   if (!d.has_settings) {
     out += "<p>Not known: the report was made without <code>--config</code>, so the charts show no threshold lines "
            "and the loops no supply temperature. Bands, alarms and margins are as the service recorded them.</p>\n";
+  } else if (const auto all = uniform_thresholds(d)) {
+    const band_thresholds& u = *all;
+    out += "<p>All " + std::to_string(d.zones.size()) + " zones: <b>tight</b> below " + fmt("%.2f K", u.margin_warn_k) +
+           " of margin, <b>alarm</b> below " + fmt("%.2f K", u.margin_alarm_k) +
+           ", <b>condensing</b> at 0 K or a wet switch; hysteresis " + fmt("%.2f K", u.hysteresis_k) +
+           ", confirmed over " + fmt("%.0f s", u.confirm_s) + "; inputs stale after " + fmt("%.0f s", u.stale_after_s) +
+           ". <span class=\"small\">From " + esc(d.config_label) +
+           " as it is now (the history does not record earlier thresholds).</span></p>\n";
   } else {
     out += "<p class=\"small\">From " + esc(d.config_label) +
            " as it is now (the history does not record earlier thresholds).</p>\n<table><tr><th>zone</th><th "
@@ -605,13 +630,21 @@ std::string render_html(const report_data& d) {
     out += "</table>\n";
   }
 
-  out += "<h2>Alarm system</h2>\n" + alarm_table(d.alarms);
-  out += "<h2>Mould risk</h2>\n<p class=\"small\">Surface RH: the room air's vapour pressure over the saturation "
-         "pressure at the coldest surface, per minute. EN ISO 13788 (as summarised in BS 5250 Annex D) takes surface "
-         "RH that stays at or above 80 % for several days as a mould risk; runs of 3 days or more are marked ▲ "
-         "(our reading of \"several days\"). Zones without a surface sensor have no surface RH.</p>\n" +
-         mould_table(d);
+  out += "<div class=\"two\"><div><h2>Alarm system</h2>\n" + alarm_table(d.alarms) + "</div>\n";
+  out += "<div><h2>Mould risk</h2>\n" + mould_table(d) +
+         "<p class=\"small\">Surface RH: the room air's vapour pressure over the saturation pressure at the coldest "
+         "surface, per minute. EN ISO 13788 (as summarised in BS 5250 Annex D) takes surface RH that stays at or "
+         "above 80 % for several days as a mould risk; runs of 3 days or more are marked ▲ (our reading of "
+         "\"several days\"). Zones without a surface sensor have no surface RH.</p></div></div>\n";
 
+  out += "<h2>Zones</h2>\n" + legend();
+  for (const auto& z : d.zones) {
+    out += "<div class=\"zone\"><h3>Zone " + esc(z.review.zone) + "</h3>\n";
+    out += margin_chart(d, z);
+    out += temperature_chart(d, z);
+    out += zone_table(z);
+    out += "</div>\n";
+  }
   if (!d.loops.empty()) {
     out += "<h2>Loops: supply setpoint</h2>\n<p class=\"small\">━ setpoint (from the service's setpoint events), ┈ "
            "measured supply (mean of the loop's zones; needs --config), ╌ setpoint limits.</p>\n";
@@ -637,14 +670,6 @@ std::string render_html(const report_data& d) {
     }
   }
 
-  out += "<h2>Zones</h2>\n" + legend();
-  for (const auto& z : d.zones) {
-    out += "<div class=\"zone\"><h3>Zone " + esc(z.review.zone) + "</h3>\n";
-    out += margin_chart(d, z);
-    out += temperature_chart(d, z);
-    out += zone_table(z);
-    out += "</div>\n";
-  }
   out += "<div class=\"caution\">" + esc(k_caution) + "</div>\n";
   out += "<p class=\"small\">Times are UTC. Band times come from the band events (to the second); chart shading from "
          "the worst band of each minute. Samples older than the roll-up age are hourly: their points are hours.</p>\n";
