@@ -7,12 +7,14 @@
 //   4. Storage: bytes per zone per day of per-minute samples, then everything rolled up into
 //      hourly rows, bytes per zone-hour, and the size after a year for 200 zones.
 // Usage: dewmargin_report_bench [DIRECTORY] [ZONES] [DAYS]   (default: temp dir, 200, 30)
+#include <sys/resource.h>
 #include <unistd.h>
 
 #include <algorithm>
 #include <chrono>
 #include <cmath>
 #include <cstdio>
+#include <cstdlib>
 #include <filesystem>
 #include <sstream>
 #include <string>
@@ -29,6 +31,15 @@ constexpr std::int64_t k_start_ms = 1'782'864'000'000;  // 2026-07-01T00:00:00Z
 constexpr std::int64_t k_min_ms = 60'000;
 
 double ms_since(steady::time_point t) { return std::chrono::duration<double, std::milli>(steady::now() - t).count(); }
+
+// CPU time of this process (all threads), ms: the figure that does not depend on what else the
+// machine runs. On an idle machine with two cores the report's wall time is about half of it.
+double cpu_ms() {
+  rusage u{};
+  getrusage(RUSAGE_SELF, &u);
+  return (static_cast<double>(u.ru_utime.tv_sec + u.ru_stime.tv_sec) * 1000.0) +
+         static_cast<double>(u.ru_utime.tv_usec + u.ru_stime.tv_usec) / 1000.0;
+}
 
 double median(std::vector<double> v) {
   std::sort(v.begin(), v.end());
@@ -132,7 +143,7 @@ int main(int argc, char** argv) {
     std::printf("history: %d zones × %d days: %.2f M samples, %zu events written in %.1f s\n", zones, days, rows / 1e6,
                 events, took);
   }
-  const auto minute_bytes = db_bytes(file);
+  const auto minute_bytes = static_cast<double>(db_bytes(file));
   std::printf("storage, per-minute samples and events: %.1f MB, %.1f kB per zone per day\n", minute_bytes / 1e6,
               minute_bytes / 1e3 / zones / days);
 
@@ -141,10 +152,34 @@ int main(int argc, char** argv) {
     std::fprintf(stderr, "%s\n", reader.err().message.c_str());
     return 1;
   }
+  // The two passes of a report on their own (one run each): events (JSON) and samples.
+  {
+    auto t = steady::now();
+    std::size_t n_events = 0;
+    auto ev = reader.value().for_each_event({}, [&](const dewmargin::stored_event& e) {
+      n_events += dewmargin::report::facts_of(e).valid ? 1 : 0;
+    });
+    const double events_ms = ms_since(t);
+    t = steady::now();
+    const auto layout = dewmargin::report::layout_for(from_unix_ms(k_start_ms),
+                                                      from_unix_ms(k_start_ms + std::int64_t{days} * 1440 * k_min_ms), 480);
+    std::size_t n_periods = 0;
+    auto sp = reader.value().for_each_period({}, [&](const dewmargin::zone_period& p) {
+      (void)p;
+      ++n_periods;
+    });
+    const double scan_ms = ms_since(t);
+    if (!ev.ok() || !sp.ok()) return 1;
+    (void)layout;
+    std::printf("passes: %zu events read and parsed in %.0f ms; %zu sample rows read in %.0f ms\n", n_events,
+                events_ms, n_periods, scan_ms);
+  }
   std::vector<double> report_ms;
+  std::vector<double> report_cpu_ms;
   std::size_t html_bytes = 0;
   for (int run = 0; run < 3; ++run) {
     const auto t = steady::now();
+    const double cpu0 = cpu_ms();
     dewmargin::report::report_options o;
     o.generated_at = from_unix_ms(k_start_ms);
     auto data = dewmargin::report::build_report(reader.value(), o);
@@ -154,10 +189,16 @@ int main(int argc, char** argv) {
     }
     html_bytes = dewmargin::report::render_html(data.value()).size();
     report_ms.push_back(ms_since(t));
+    report_cpu_ms.push_back(cpu_ms() - cpu0);
   }
   std::printf("report, %d zones × %d days (read + compute + render, %.1f MB HTML): median %.0f ms of 3 (%.0f, %.0f, "
               "%.0f)\n",
-              zones, days, html_bytes / 1e6, median(report_ms), report_ms[0], report_ms[1], report_ms[2]);
+              zones, days, static_cast<double>(html_bytes) / 1e6, median(report_ms), report_ms[0], report_ms[1], report_ms[2]);
+  std::printf("report CPU time (all threads): median %.0f ms; load average now %.1f on %ld cores\n",
+              median(report_cpu_ms), [] {
+                double load[1] = {0};
+                return getloadavg(load, 1) == 1 ? load[0] : -1.0;
+              }(), sysconf(_SC_NPROCESSORS_ONLN));
 
   std::vector<double> history_ms;
   std::size_t rows = 0;
@@ -194,12 +235,12 @@ int main(int argc, char** argv) {
     const double took = ms_since(t) / 1000.0;
     const auto rolled = writer.counters().minutes_rolled_up;
     writer.stop();
-    const auto after = db_bytes(file);
+    const auto after = static_cast<double>(db_bytes(file));
     const double event_bytes_guess = 0;  // events stay; their share is in both figures
     (void)event_bytes_guess;
     const double hours = static_cast<double>(zones) * days * 24;
     std::printf("roll-up: %.2f M minutes into %.0f hourly rows in %.1f s; file now %.1f MB (events included)\n",
-                rolled / 1e6, hours, took, after / 1e6);
+                static_cast<double>(rolled) / 1e6, hours, took, after / 1e6);
     const double per_zone_day_minutes = minute_bytes / static_cast<double>(zones) / days;
     const double per_zone_day_hours = after / static_cast<double>(zones) / days;
     std::printf("year for 200 zones (35 days per-minute + 330 days hourly, events included): %.2f GB; all per-minute: "

@@ -64,6 +64,7 @@ TEST(Series, RoundBucketsAndTheMinimumSurvives) {
     sample.worst_band = m == 12345 ? "condensing" : "safe";
     s.add(period_of(sample));
   }
+  s.finish();
   const auto& dip = s.buckets()[12345 / 120];
   EXPECT_DOUBLE_EQ(*dip.min_margin_k, -2.5);
   EXPECT_EQ(dip.band_minutes[3], 1);

@@ -34,8 +34,25 @@ zone_series::zone_series(std::string zone, const series_layout& layout) : layout
 }
 
 void zone_series::add(const zone_period& p) {
-  merge_period(buckets_[layout_.index_of(p.start)], p);
-  merge_period(total_, p);
+  zone_period& b = buckets_[layout_.index_of(p.start)];
+  if (b.sample_minutes == 0 && b.length_min == 0) b.start = p.start;
+  merge_period(b, p);
+}
+
+void zone_series::absorb(const zone_series& later) {
+  for (std::size_t i = 0; i < buckets_.size() && i < later.buckets_.size(); ++i) {
+    const zone_period& l = later.buckets_[i];
+    if (l.sample_minutes == 0) continue;
+    zone_period& b = buckets_[i];
+    if (b.sample_minutes == 0 && b.length_min == 0) b.start = l.start;
+    merge_period(b, l);
+  }
+}
+
+void zone_series::finish() {
+  for (const zone_period& b : buckets_) {
+    if (b.sample_minutes > 0) merge_period(total_, b);
+  }
 }
 
 }  // namespace dewmargin::report

@@ -22,10 +22,17 @@ struct series_layout {
 // The smallest round bucket that cuts [since, until) into at most max_buckets.
 [[nodiscard]] series_layout layout_for(timestamp since, timestamp until, std::size_t max_buckets);
 
+// One zone's buckets. A bucket starts at its first period (so that two halves of the period,
+// read apart, join without a false gap); the chart places it by the layout.
 class zone_series {
  public:
   zone_series(std::string zone, const series_layout& layout);
+  [[nodiscard]] const std::string& zone() const { return total_.zone; }
   void add(const zone_period& p);  // periods of one zone, in time order
+  // Appends the buckets of a later part of the period (read separately), bucket by bucket.
+  void absorb(const zone_series& later);
+  // Merges the buckets into total(); call once, after the last add/absorb.
+  void finish();
   [[nodiscard]] const std::vector<zone_period>& buckets() const { return buckets_; }
   [[nodiscard]] const zone_period& total() const { return total_; }  // the whole period merged
 
