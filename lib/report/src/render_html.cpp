@@ -117,8 +117,9 @@ class svg_chart {
       const std::string label = dates ? iso.substr(5, 5) : iso.substr(11, 5);
       out += "<line class=\"grid\" x1=\"" + num(px) + "\" y1=\"" + num(plot_top) + "\" x2=\"" + num(px) + "\" y2=\"" +
              num(plot_bottom) + "\"/>";
-      out += "<text class=\"tick\" x=\"" + num(px) + "\" y=\"" + num(plot_bottom + 11) + "\" text-anchor=\"middle\">" +
-             label + "</text>\n";
+      const char* anchor = px > k_left + k_plot_w - 14 ? "end" : (px < k_left + 14 ? "start" : "middle");
+      out += "<text class=\"tick\" x=\"" + num(px) + "\" y=\"" + num(plot_bottom + 11) + "\" text-anchor=\"" +
+             anchor + "\">" + label + "</text>\n";
     }
     return out;
   }
@@ -174,15 +175,6 @@ std::string svg_defs() {
          "height=\"5\" fill=\"#35578f\"/><circle cx=\"2.5\" cy=\"2.5\" r=\"1\" fill=\"#c9d6ec\"/></pattern></defs>\n";
 }
 
-std::optional<band> shaded_band(const zone_period& b) {
-  if (b.sample_minutes == 0) return std::nullopt;
-  for (const band candidate : {band::condensing, band::alarm, band::tight}) {
-    if (b.band_minutes[static_cast<std::size_t>(band_severity(candidate))] > 0) return candidate;
-  }
-  if (2 * b.band_minutes[static_cast<std::size_t>(band_severity(band::unknown))] > b.sample_minutes) return band::unknown;
-  return std::nullopt;
-}
-
 std::string margin_chart(const report_data& d, const zone_report& z) {
   constexpr double k_height = 160.0;
   constexpr double k_lane = 16.0;  // marker lane at the top
@@ -201,17 +193,23 @@ std::string margin_chart(const report_data& d, const zone_report& z) {
   const double bottom = s.top + s.height;
   std::string out = c.open("margin of zone " + z.review.zone);
   out += svg_defs();
-  // Band shading, merged across neighbouring buckets of the same band.
-  for (std::size_t i = 0; i < buckets.size();) {
-    const auto b = shaded_band(buckets[i]);
-    std::size_t j = i + 1;
-    while (j < buckets.size() && shaded_band(buckets[j]) == b) ++j;
-    if (b) {
-      const double x0 = c.bucket_x(i);
-      const double x1 = j < buckets.size() ? c.bucket_x(j) : k_left + k_plot_w;
-      out += "<rect x=\"" + num(x0) + "\" y=\"" + num(s.top) + "\" width=\"" + num(std::max(0.8, x1 - x0)) +
-             "\" height=\"" + num(s.height) + "\" fill=\"" + k_band_fill[band_severity(*b)] + "\"><title>" +
-             k_band_label[band_severity(*b)] + " from " + utc(d.layout.start_of(i)) + "</title></rect>\n";
+  // Band shading from the band events (exact), one worst band per pixel column so that a year
+  // of short visits stays a small drawing; merged across neighbouring columns of the same band.
+  constexpr int k_columns = static_cast<int>(k_plot_w);
+  std::vector<int> column(k_columns, -1);  // band severity, -1: nothing to shade
+  for (const auto& span : z.review.spans) {
+    if (!span.b || *span.b == band::safe) continue;
+    const int first = std::clamp(static_cast<int>(c.x(span.from) - k_left), 0, k_columns - 1);
+    const int last = std::clamp(static_cast<int>(std::ceil(c.x(span.to) - k_left)) - 1, first, k_columns - 1);
+    for (int col = first; col <= last; ++col) column[col] = std::max(column[col], band_severity(*span.b));
+  }
+  for (int i = 0; i < k_columns;) {
+    int j = i + 1;
+    while (j < k_columns && column[j] == column[i]) ++j;
+    if (column[i] > 0) {
+      out += "<rect x=\"" + num(k_left + i) + "\" y=\"" + num(s.top) + "\" width=\"" + num(j - i) + "\" height=\"" +
+             num(s.height) + "\" fill=\"" + k_band_fill[column[i]] + "\"><title>" + k_band_label[column[i]] +
+             "</title></rect>\n";
     }
     i = j;
   }
@@ -226,6 +224,8 @@ std::string margin_chart(const report_data& d, const zone_report& z) {
            "\" x2=\"" + num(k_left + k_plot_w) + "\" y2=\"" + num(s.y(z.thresholds->margin_alarm_k)) + "\"/>\n";
   }
   out += c.lines(buckets, s, "spread", [](const zone_period& b) { return b.max_margin_k; });
+  // A white halo keeps the margin line readable over the dark condensing shading.
+  out += c.lines(buckets, s, "halo", [](const zone_period& b) { return b.min_margin_k; });
   out += c.lines(buckets, s, "margin", [](const zone_period& b) { return b.min_margin_k; });
   // Markers lane: shelving bars, acknowledgements, valve actions.
   out += "<rect class=\"lane\" x=\"" + num(k_left) + "\" y=\"1\" width=\"" + num(k_plot_w) + "\" height=\"" +
@@ -379,6 +379,7 @@ td.n, th.n { text-align: right; font-variant-numeric: tabular-nums; }
 .chart .zero { stroke: #1d1d1d; stroke-width: 1.2; }
 .chart .warn { stroke: #6b6b6b; stroke-width: 1; stroke-dasharray: 6 3; }
 .chart .alarmline { stroke: #1d1d1d; stroke-width: 1; stroke-dasharray: 2 2; }
+.chart .halo { fill: none; stroke: #ffffff; stroke-width: 3.6; stroke-linejoin: round; }
 .chart .margin { fill: none; stroke: #111; stroke-width: 1.5; stroke-linejoin: round; }
 .chart .spread { fill: none; stroke: #9a9a9a; stroke-width: 0.7; }
 .chart .dewpoint { fill: none; stroke: #35578f; stroke-width: 1.4; stroke-dasharray: 5 2; }
@@ -671,8 +672,8 @@ std::string render_html(const report_data& d) {
   }
 
   out += "<div class=\"caution\">" + esc(k_caution) + "</div>\n";
-  out += "<p class=\"small\">Times are UTC. Band times come from the band events (to the second); chart shading from "
-         "the worst band of each minute. Samples older than the roll-up age are hourly: their points are hours.</p>\n";
+  out += "<p class=\"small\">Times are UTC. Band times and the shading come from the band events (to the second); "
+         "the margin line from the samples. Samples older than the roll-up age are hourly: their points are hours.</p>\n";
   out += "</body>\n</html>\n";
   return out;
 }

@@ -53,6 +53,11 @@ void zone_review_builder::advance(timestamp t) {
   t = std::clamp(t, since_, until_);
   if (t <= cursor_) return;
   const double dt = seconds_between(cursor_, t);
+  if (!r_.spans.empty() && r_.spans.back().b == band_ && r_.spans.back().to == cursor_) {
+    r_.spans.back().to = t;
+  } else {
+    r_.spans.push_back({cursor_, t, band_});
+  }
   if (band_) {
     r_.band_s[static_cast<std::size_t>(band_severity(*band_))] += dt;
   } else {

@@ -42,8 +42,16 @@ struct timeline_marker {
   timestamp end;  // shelving: until (the unshelve, the expiry or the period's end); else = at
 };
 
+// A stretch of one band, from the events (no data: band unset).
+struct band_span {
+  timestamp from;
+  timestamp to;
+  std::optional<band> b;
+};
+
 struct zone_review {
   std::string zone;
+  std::vector<band_span> spans;  // the whole period, in order, for the timeline's shading
   std::array<double, k_band_count> band_s{};  // seconds in each band (band's order)
   double no_data_s = 0.0;
   std::vector<timestamp> raises;      // alarms raised in the period
