@@ -122,7 +122,8 @@ int main(int argc, char** argv) {
           // About 40 events per zone and day: 20 alarm visits.
           if (m % 72 == z % 72) {
             out.events.push_back(band_event(minute_ms, names[static_cast<std::size_t>(z)], "tight", "alarm", true));
-            out.events.push_back(band_event(minute_ms + 30'000, names[static_cast<std::size_t>(z)], "alarm", "tight", false));
+            out.events.push_back(
+                band_event(minute_ms + 30'000, names[static_cast<std::size_t>(z)], "alarm", "tight", false));
             events += 2;
           }
         }
@@ -156,13 +157,12 @@ int main(int argc, char** argv) {
   {
     auto t = steady::now();
     std::size_t n_events = 0;
-    auto ev = reader.value().for_each_event({}, [&](const dewmargin::stored_event& e) {
-      n_events += dewmargin::report::facts_of(e).valid ? 1 : 0;
-    });
+    auto ev = reader.value().for_each_event(
+        {}, [&](const dewmargin::stored_event& e) { n_events += dewmargin::report::facts_of(e).valid ? 1 : 0; });
     const double events_ms = ms_since(t);
     t = steady::now();
-    const auto layout = dewmargin::report::layout_for(from_unix_ms(k_start_ms),
-                                                      from_unix_ms(k_start_ms + std::int64_t{days} * 1440 * k_min_ms), 480);
+    const auto layout = dewmargin::report::layout_for(
+        from_unix_ms(k_start_ms), from_unix_ms(k_start_ms + std::int64_t{days} * 1440 * k_min_ms), 480);
     std::size_t n_periods = 0;
     auto sp = reader.value().for_each_period({}, [&](const dewmargin::zone_period& p) {
       (void)p;
@@ -171,8 +171,8 @@ int main(int argc, char** argv) {
     const double scan_ms = ms_since(t);
     if (!ev.ok() || !sp.ok()) return 1;
     (void)layout;
-    std::printf("passes: %zu events read and parsed in %.0f ms; %zu sample rows read in %.0f ms\n", n_events,
-                events_ms, n_periods, scan_ms);
+    std::printf("passes: %zu events read and parsed in %.0f ms; %zu sample rows read in %.0f ms\n", n_events, events_ms,
+                n_periods, scan_ms);
   }
   std::vector<double> report_ms;
   std::vector<double> report_cpu_ms;
@@ -191,14 +191,17 @@ int main(int argc, char** argv) {
     report_ms.push_back(ms_since(t));
     report_cpu_ms.push_back(cpu_ms() - cpu0);
   }
-  std::printf("report, %d zones × %d days (read + compute + render, %.1f MB HTML): median %.0f ms of 3 (%.0f, %.0f, "
-              "%.0f)\n",
-              zones, days, static_cast<double>(html_bytes) / 1e6, median(report_ms), report_ms[0], report_ms[1], report_ms[2]);
-  std::printf("report CPU time (all threads): median %.0f ms; load average now %.1f on %ld cores\n",
-              median(report_cpu_ms), [] {
-                double load[1] = {0};
-                return getloadavg(load, 1) == 1 ? load[0] : -1.0;
-              }(), sysconf(_SC_NPROCESSORS_ONLN));
+  std::printf(
+      "report, %d zones × %d days (read + compute + render, %.1f MB HTML): median %.0f ms of 3 (%.0f, %.0f, "
+      "%.0f)\n",
+      zones, days, static_cast<double>(html_bytes) / 1e6, median(report_ms), report_ms[0], report_ms[1], report_ms[2]);
+  std::printf(
+      "report CPU time (all threads): median %.0f ms; load average now %.1f on %ld cores\n", median(report_cpu_ms),
+      [] {
+        double load[1] = {0};
+        return getloadavg(load, 1) == 1 ? load[0] : -1.0;
+      }(),
+      sysconf(_SC_NPROCESSORS_ONLN));
 
   std::vector<double> history_ms;
   std::size_t rows = 0;
@@ -223,7 +226,9 @@ int main(int argc, char** argv) {
   // Everything rolled up into hours, then the file's size.
   {
     options.keep_minute_samples_days = 1.0 / 1440;  // everything older than a minute before "now"
-    options.retention_now = [days] { return from_unix_ms(k_start_ms + (static_cast<std::int64_t>(days) + 1) * 1440 * k_min_ms); };
+    options.retention_now = [days] {
+      return from_unix_ms(k_start_ms + (static_cast<std::int64_t>(days) + 1) * 1440 * k_min_ms);
+    };
     options.rollup_pass_budget = std::chrono::hours{1};
     options.incremental_vacuum_pages = 1'000'000;
     options.checkpoint_truncate_every = 1;
@@ -243,9 +248,10 @@ int main(int argc, char** argv) {
                 static_cast<double>(rolled) / 1e6, hours, took, after / 1e6);
     const double per_zone_day_minutes = minute_bytes / static_cast<double>(zones) / days;
     const double per_zone_day_hours = after / static_cast<double>(zones) / days;
-    std::printf("year for 200 zones (35 days per-minute + 330 days hourly, events included): %.2f GB; all per-minute: "
-                "%.2f GB\n",
-                (per_zone_day_minutes * 35 + per_zone_day_hours * 330) * 200 / 1e9, per_zone_day_minutes * 365 * 200 / 1e9);
+    std::printf(
+        "year for 200 zones (35 days per-minute + 330 days hourly, events included): %.2f GB; all per-minute: "
+        "%.2f GB\n",
+        (per_zone_day_minutes * 35 + per_zone_day_hours * 330) * 200 / 1e9, per_zone_day_minutes * 365 * 200 / 1e9);
   }
   fs::remove(file);
   fs::remove(file.string() + "-wal");

@@ -17,10 +17,10 @@ TEST(AlarmFigures, FloodStartsAboveTenAndEndsBelowFive) {
     int floods;
   };
   const flood_case cases[] = {
-      {{10, 10, 10}, 0, 0},           // exactly 10 is not a flood
-      {{11, 5, 5, 4, 0}, 3, 1},       // 5 keeps it going, 4 ends it
-      {{11, 4, 11, 0}, 2, 2},         // two floods
-      {{0, 12, 12, 12}, 3, 1},        // still in flood at the end
+      {{10, 10, 10}, 0, 0},      // exactly 10 is not a flood
+      {{11, 5, 5, 4, 0}, 3, 1},  // 5 keeps it going, 4 ends it
+      {{11, 4, 11, 0}, 2, 2},    // two floods
+      {{0, 12, 12, 12}, 3, 1},   // still in flood at the end
   };
   for (const auto& c : cases) {
     int floods = 0;
@@ -35,9 +35,9 @@ TEST(AlarmFigures, ChatteringIsThreeWithinOneMinute) {
     for (int s : seconds) t.push_back(k_t0 + std::chrono::seconds{s});
     return t;
   };
-  EXPECT_EQ(chattering_episodes(at({0, 30, 60})), 1);           // 60 s apart at most: one minute
+  EXPECT_EQ(chattering_episodes(at({0, 30, 60})), 1);  // 60 s apart at most: one minute
   EXPECT_EQ(chattering_episodes(at({0, 30, 61})), 0);
-  EXPECT_EQ(chattering_episodes(at({0, 10, 20, 30, 40})), 1);   // one burst, counted once
+  EXPECT_EQ(chattering_episodes(at({0, 10, 20, 30, 40})), 1);  // one burst, counted once
   EXPECT_EQ(chattering_episodes(at({0, 10, 20, 100, 110, 120})), 2);
   EXPECT_EQ(chattering_episodes(at({0, 10})), 0);
 }

@@ -110,11 +110,11 @@ TEST(ReportFixture, AlarmSystemFigures) {
   temp_dir dir;
   const report_data d = fixture_report(fixture_db(dir));
   const alarm_figures& f = d.alarms;
-  EXPECT_EQ(f.alarms, 20);                            // a 2 + b 18
-  EXPECT_DOUBLE_EQ(f.per_day_avg, 20 / (4.0 / 24));   // 4 hours: 120 a day
+  EXPECT_EQ(f.alarms, 20);                           // a 2 + b 18
+  EXPECT_DOUBLE_EQ(f.per_day_avg, 20 / (4.0 / 24));  // 4 hours: 120 a day
   EXPECT_EQ(f.periods_10min, 24);
   EXPECT_DOUBLE_EQ(f.per_10min_avg, 20.0 / 24);
-  EXPECT_EQ(f.per_10min_peak, 12);                    // 09:00-09:10: b's 12
+  EXPECT_EQ(f.per_10min_peak, 12);  // 09:00-09:10: b's 12
   EXPECT_EQ(f.peak_10min, parse_iso8601("2026-07-14T09:00:00Z").value());
   // 09:00-09:10 has 12 (> 10: a flood starts), 09:10-09:20 has 6 (not < 5: still in flood),
   // 09:20-09:30 has 0 (ends): 2 of 24 periods.

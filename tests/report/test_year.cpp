@@ -81,8 +81,8 @@ TEST(ReportYear, FileStaysBoundedAndTheReportStaysRight) {
   const auto bytes = std::filesystem::file_size(file);
   // Measured about 100 bytes per per-minute row and 140 per hourly row; the bound leaves room
   // (and is a tenth of what the year would take in per-minute rows: ~105 MB).
-  const std::uintmax_t bound = static_cast<std::uintmax_t>(minutes) * 160 + static_cast<std::uintmax_t>(hours) * 260 +
-                               2'000'000;
+  const std::uintmax_t bound =
+      static_cast<std::uintmax_t>(minutes) * 160 + static_cast<std::uintmax_t>(hours) * 260 + 2'000'000;
   EXPECT_LE(bytes, bound) << minutes << " minute rows, " << hours << " hour rows";
   std::cout << "[ year ] file " << bytes / 1000 << " kB: " << minutes << " minute rows, " << hours
             << " hourly rows (bound " << bound / 1000 << " kB)\n";
@@ -102,7 +102,8 @@ TEST(ReportYear, FileStaysBoundedAndTheReportStaysRight) {
   const zone_period& t0 = z0.series.total();
   EXPECT_EQ(t0.sample_minutes, 1440 * k_days);
   EXPECT_DOUBLE_EQ(*t0.min_margin_k, -1.5);
-  EXPECT_EQ(to_unix_ms(t0.min_margin_at), k_start_ms + 200 * k_day_ms + 600 * k_min_ms) << "the minute, from an hour row";
+  EXPECT_EQ(to_unix_ms(t0.min_margin_at), k_start_ms + 200 * k_day_ms + 600 * k_min_ms)
+      << "the minute, from an hour row";
   EXPECT_EQ(t0.mould_minutes, 5 * 1440 + 120);
   EXPECT_EQ(t0.mould_longest_min, 5 * 1440) << "a five-day run across 120 hourly rows";
   EXPECT_EQ(t0.band_minutes[3], 1);

@@ -62,11 +62,12 @@ TEST(StoreRollup, OldMinutesBecomeHoursThatKeepTheFigures) {
   EXPECT_EQ(db.integer("SELECT count(*) FROM zone_hours"), 4);
   EXPECT_EQ(db.integer("SELECT count(*) FROM zone_samples"), 120);
   EXPECT_EQ(db.integer("SELECT min(minute_ms) FROM zone_samples"), k_t0_ms + 120 * k_min_ms);
-  EXPECT_EQ(db.texts("SELECT sample_minutes || ' ' || min_margin_k || ' ' || min_margin_at_ms || ' ' || safe_min || ' ' "
-                     "|| condensing_min || ' ' || mould_min || ' ' || mould_head_min || ' ' || mould_tail_min || ' ' "
-                     "|| mould_longest_min || ' ' || mean_air_temp_c FROM zone_hours WHERE zone = 'z1' ORDER BY hour_ms"),
-            (std::vector<std::string>{"60 -0.4 " + std::to_string(k_t0_ms + 17 * k_min_ms) + " 59 1 20 0 20 20 25.0",
-                                      "60 3.0 " + std::to_string(k_t0_ms + 60 * k_min_ms) + " 60 0 30 30 0 30 25.0"}));
+  EXPECT_EQ(
+      db.texts("SELECT sample_minutes || ' ' || min_margin_k || ' ' || min_margin_at_ms || ' ' || safe_min || ' ' "
+               "|| condensing_min || ' ' || mould_min || ' ' || mould_head_min || ' ' || mould_tail_min || ' ' "
+               "|| mould_longest_min || ' ' || mean_air_temp_c FROM zone_hours WHERE zone = 'z1' ORDER BY hour_ms"),
+      (std::vector<std::string>{"60 -0.4 " + std::to_string(k_t0_ms + 17 * k_min_ms) + " 59 1 20 0 20 20 25.0",
+                                "60 3.0 " + std::to_string(k_t0_ms + 60 * k_min_ms) + " 60 0 30 30 0 30 25.0"}));
 
   auto reader = history_reader::open(dir.file("h.db"));
   ASSERT_TRUE(reader.ok()) << reader.err().message;

@@ -115,8 +115,8 @@ int run_report(const report_options& o, std::ostream& out, std::ostream& err) {
     std::remove(tmp.c_str());
     return k_exit_runtime;
   }
-  out << "report written: " << o.out << " (" << data.value().zones.size() << " zones, "
-      << data.value().events_read << " events, " << data.value().periods_read << " sample rows)\n";
+  out << "report written: " << o.out << " (" << data.value().zones.size() << " zones, " << data.value().events_read
+      << " events, " << data.value().periods_read << " sample rows)\n";
   return k_exit_ok;
 }
 

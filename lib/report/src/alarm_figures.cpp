@@ -44,7 +44,8 @@ alarm_figures compute_alarm_figures(const std::vector<zone_review>& zones, times
   f.period_days = std::chrono::duration<double>(span).count() / 86400.0;
   constexpr auto k_day = std::chrono::hours{24};
   constexpr auto k_10min = std::chrono::minutes{10};
-  const auto days = static_cast<std::size_t>(std::max<std::int64_t>(1, (span + k_day - std::chrono::milliseconds{1}) / k_day));
+  const auto days =
+      static_cast<std::size_t>(std::max<std::int64_t>(1, (span + k_day - std::chrono::milliseconds{1}) / k_day));
   const auto tens =
       static_cast<std::size_t>(std::max<std::int64_t>(1, (span + k_10min - std::chrono::milliseconds{1}) / k_10min));
   std::vector<int> per_day(days, 0);

@@ -9,8 +9,8 @@
 namespace dewmargin::report {
 namespace {
 
-const std::vector<std::string> k_report_kinds = {"band", "ack", "shelve", "unshelve", "valve", "setpoint",
-                                                 "input", "service"};
+const std::vector<std::string> k_report_kinds = {"band",  "ack",      "shelve", "unshelve",
+                                                 "valve", "setpoint", "input",  "service"};
 
 // "l2 dew point 15.20 °C + 2.00 K, held at max" → "l2 dew point # °C + # K, held at max".
 std::string reason_pattern(const std::string& reason) {

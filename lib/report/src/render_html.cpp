@@ -25,12 +25,23 @@ std::string esc(std::string_view text) {
   out.reserve(text.size());
   for (const char c : text) {
     switch (c) {
-      case '&': out += "&amp;"; break;
-      case '<': out += "&lt;"; break;
-      case '>': out += "&gt;"; break;
-      case '"': out += "&quot;"; break;
-      case '\'': out += "&#39;"; break;
-      default: out += c;
+      case '&':
+        out += "&amp;";
+        break;
+      case '<':
+        out += "&lt;";
+        break;
+      case '>':
+        out += "&gt;";
+        break;
+      case '"':
+        out += "&quot;";
+        break;
+      case '\'':
+        out += "&#39;";
+        break;
+      default:
+        out += c;
     }
   }
   return out;
@@ -91,8 +102,8 @@ class svg_chart {
   }
 
   std::string open(const std::string& label) const {
-    return "<svg class=\"chart\" viewBox=\"0 0 " + num(k_width) + " " + num(height_) +
-           "\" role=\"img\" aria-label=\"" + esc(label) + "\">\n";
+    return "<svg class=\"chart\" viewBox=\"0 0 " + num(k_width) + " " + num(height_) + "\" role=\"img\" aria-label=\"" +
+           esc(label) + "\">\n";
   }
 
   // Time ticks along the bottom of the plot area.
@@ -118,8 +129,8 @@ class svg_chart {
       out += "<line class=\"grid\" x1=\"" + num(px) + "\" y1=\"" + num(plot_top) + "\" x2=\"" + num(px) + "\" y2=\"" +
              num(plot_bottom) + "\"/>";
       const char* anchor = px > k_left + k_plot_w - 14 ? "end" : (px < k_left + 14 ? "start" : "middle");
-      out += "<text class=\"tick\" x=\"" + num(px) + "\" y=\"" + num(plot_bottom + 11) + "\" text-anchor=\"" +
-             anchor + "\">" + label + "</text>\n";
+      out += "<text class=\"tick\" x=\"" + num(px) + "\" y=\"" + num(plot_bottom + 11) + "\" text-anchor=\"" + anchor +
+             "\">" + label + "</text>\n";
     }
     return out;
   }
@@ -218,8 +229,8 @@ std::string margin_chart(const report_data& d, const zone_report& z) {
   out += "<line class=\"zero\" x1=\"" + num(k_left) + "\" y1=\"" + num(s.y(0)) + "\" x2=\"" + num(k_left + k_plot_w) +
          "\" y2=\"" + num(s.y(0)) + "\"/>\n";
   if (z.thresholds) {
-    out += "<line class=\"warn\" x1=\"" + num(k_left) + "\" y1=\"" + num(s.y(z.thresholds->margin_warn_k)) + "\" x2=\"" +
-           num(k_left + k_plot_w) + "\" y2=\"" + num(s.y(z.thresholds->margin_warn_k)) + "\"/>\n";
+    out += "<line class=\"warn\" x1=\"" + num(k_left) + "\" y1=\"" + num(s.y(z.thresholds->margin_warn_k)) +
+           "\" x2=\"" + num(k_left + k_plot_w) + "\" y2=\"" + num(s.y(z.thresholds->margin_warn_k)) + "\"/>\n";
     out += "<line class=\"alarmline\" x1=\"" + num(k_left) + "\" y1=\"" + num(s.y(z.thresholds->margin_alarm_k)) +
            "\" x2=\"" + num(k_left + k_plot_w) + "\" y2=\"" + num(s.y(z.thresholds->margin_alarm_k)) + "\"/>\n";
   }
@@ -232,10 +243,11 @@ std::string margin_chart(const report_data& d, const zone_report& z) {
          num(k_lane) + "\"/>\n";
   for (const auto& m : z.review.markers) {
     const double px = c.x(m.at);
-    const std::string title = "<title>" + std::string(m.kind == marker_kind::ack            ? "acknowledged"
-                                                      : m.kind == marker_kind::shelve       ? "shelved"
-                                                      : m.kind == marker_kind::valve_closed ? "valve closed"
-                                                                                            : "valve opened") +
+    const std::string title = "<title>" +
+                              std::string(m.kind == marker_kind::ack            ? "acknowledged"
+                                          : m.kind == marker_kind::shelve       ? "shelved"
+                                          : m.kind == marker_kind::valve_closed ? "valve closed"
+                                                                                : "valve opened") +
                               " " + utc(m.at) + "</title>";
     switch (m.kind) {
       case marker_kind::shelve:
@@ -250,8 +262,8 @@ std::string margin_chart(const report_data& d, const zone_report& z) {
                ",16 Z\">" + title + "</path>\n";
         break;
       case marker_kind::valve_opened:
-        out += "<path class=\"vopen\" d=\"M" + num(px - 3.5) + ",16 L" + num(px + 3.5) + ",16 L" + num(px) +
-               ",9 Z\">" + title + "</path>\n";
+        out += "<path class=\"vopen\" d=\"M" + num(px - 3.5) + ",16 L" + num(px + 3.5) + ",16 L" + num(px) + ",9 Z\">" +
+               title + "</path>\n";
         break;
     }
   }
@@ -404,8 +416,10 @@ std::string legend() {
   return "<div class=\"legend\">"
          "<span><i class=\"sw\" style=\"background:#f1e4b3\"></i>tight</span>"
          "<span><i class=\"sw\" style=\"background:#dd9a5b\"></i>alarm</span>"
-         "<span><i class=\"sw\" style=\"background:radial-gradient(circle,#c9d6ec 30%,#35578f 35%);background-size:4pt 4pt\"></i>condensing</span>"
-         "<span><i class=\"sw\" style=\"background:repeating-linear-gradient(45deg,#e4e4e4 0 2pt,#8a8a8a 2pt 3pt)\"></i>unknown</span>"
+         "<span><i class=\"sw\" style=\"background:radial-gradient(circle,#c9d6ec 30%,#35578f 35%);background-size:4pt "
+         "4pt\"></i>condensing</span>"
+         "<span><i class=\"sw\" style=\"background:repeating-linear-gradient(45deg,#e4e4e4 0 2pt,#8a8a8a 2pt "
+         "3pt)\"></i>unknown</span>"
          "<span>━ lowest margin per point</span><span>╌ warn threshold</span><span>┈ alarm threshold</span>"
          "<span>○ acknowledged</span><span>▭ shelved</span><span>▼ valve closed</span><span>△ valve opened</span>"
          "<span>lower chart: ━ coldest surface, ╍ dew point</span></div>\n";
@@ -432,13 +446,14 @@ std::string zone_table(const zone_report& z) {
   out += cell(share(r.no_data_s), true) + "</tr></table>\n";
 
   const zone_period& t = z.series.total();
-  out += "<table><tr><th>worst margin</th><th class=\"n\">alarms raised</th><th class=\"n\">time to acknowledge "
-         "(median / longest)</th><th>longest condensing episode</th><th class=\"n\">stale-input time</th></tr><tr>";
+  out +=
+      "<table><tr><th>worst margin</th><th class=\"n\">alarms raised</th><th class=\"n\">time to acknowledge "
+      "(median / longest)</th><th>longest condensing episode</th><th class=\"n\">stale-input time</th></tr><tr>";
   out += cell(t.min_margin_k ? fmt("%+.2f K", *t.min_margin_k) + " at " + utc(t.min_margin_at) : "no margin known");
-  out += cell(std::to_string(r.raises.size()) +
-                  (r.unacknowledged_at_end > 0 ? " (" + std::to_string(r.unacknowledged_at_end) + " not acknowledged)"
-                                               : ""),
-              true);
+  out += cell(
+      std::to_string(r.raises.size()) +
+          (r.unacknowledged_at_end > 0 ? " (" + std::to_string(r.unacknowledged_at_end) + " not acknowledged)" : ""),
+      true);
   const auto median = r.median_ack_s();
   out += cell(median ? duration_text(*median) + " / " + duration_text(*r.longest_ack_s()) : "–", true);
   const condensing_episode* longest = r.longest_condensing();
@@ -448,14 +463,16 @@ std::string zone_table(const zone_report& z) {
   out += cell(duration_text(r.stale_input_s), true) + "</tr></table>\n";
 
   if (!r.condensing.empty()) {
-    out += "<table><tr><th>condensing from</th><th class=\"n\">lasted</th><th class=\"n\">warning time (first "
-           "alarm before it)</th></tr>";
+    out +=
+        "<table><tr><th>condensing from</th><th class=\"n\">lasted</th><th class=\"n\">warning time (first "
+        "alarm before it)</th></tr>";
     std::size_t shown = 0;
     for (const auto& c : r.condensing) {
       if (++shown > 12) break;
-      out += "<tr>" + cell(utc(c.start)) + cell(duration_text(c.duration_s) + (c.ended ? "" : " (not ended)"), true) +
-             cell(c.warning_s > 0 ? duration_text(c.warning_s) : "none: straight to condensing", true, c.warning_s <= 0) +
-             "</tr>";
+      out +=
+          "<tr>" + cell(utc(c.start)) + cell(duration_text(c.duration_s) + (c.ended ? "" : " (not ended)"), true) +
+          cell(c.warning_s > 0 ? duration_text(c.warning_s) : "none: straight to condensing", true, c.warning_s <= 0) +
+          "</tr>";
     }
     out += "</table>\n";
     if (r.condensing.size() > 12) {
@@ -466,8 +483,9 @@ std::string zone_table(const zone_report& z) {
 }
 
 std::string alarm_table(const alarm_figures& a) {
-  std::string out = "<table><tr><th>figure (ISA-18.2 / EEMUA 191 terms)</th><th class=\"n\">this period</th>"
-                    "<th class=\"n\">published target (one operator)</th></tr>";
+  std::string out =
+      "<table><tr><th>figure (ISA-18.2 / EEMUA 191 terms)</th><th class=\"n\">this period</th>"
+      "<th class=\"n\">published target (one operator)</th></tr>";
   const auto row = [&](const std::string& what, const std::string& value, const std::string& target, bool over) {
     out += "<tr>" + cell(what) + cell(value, true, over) + cell(target, true) + "</tr>";
   };
@@ -479,8 +497,9 @@ std::string alarm_table(const alarm_figures& a) {
       a.per_10min_avg > k_target_alarms_per_10min);
   row("alarms per 10 minutes, peak", std::to_string(a.per_10min_peak) + " (" + utc(a.peak_10min) + ")",
       "≤ 10 (more is a flood)", a.per_10min_peak > k_flood_start_alarms);
-  row("10-minute periods in flood", fmt("%.2f %%", a.flood_pct) + " (" + std::to_string(a.flood_periods) + " of " +
-                                        std::to_string(a.periods_10min) + "; " + std::to_string(a.floods) + " floods)",
+  row("10-minute periods in flood",
+      fmt("%.2f %%", a.flood_pct) + " (" + std::to_string(a.flood_periods) + " of " + std::to_string(a.periods_10min) +
+          "; " + std::to_string(a.floods) + " floods)",
       "&lt; 1 %", a.flood_pct >= k_target_flood_pct);
   row("chattering alarms (3 or more in one minute)",
       std::to_string(a.chattering_sources) + " sources, " + std::to_string(a.chattering_episodes) + " episodes", "0",
@@ -492,8 +511,8 @@ std::string alarm_table(const alarm_figures& a) {
   if (!a.top_sources.empty()) {
     out += "<table><tr><th>most frequent sources</th><th class=\"n\">alarms</th><th class=\"n\">share</th></tr>";
     for (const auto& s : a.top_sources) {
-      out += "<tr>" + cell(esc(s.source)) + cell(std::to_string(s.alarms), true) + cell(fmt("%.1f %%", s.share_pct), true) +
-             "</tr>";
+      out += "<tr>" + cell(esc(s.source)) + cell(std::to_string(s.alarms), true) +
+             cell(fmt("%.1f %%", s.share_pct), true) + "</tr>";
     }
     out += "</table>\n";
   }
@@ -501,8 +520,9 @@ std::string alarm_table(const alarm_figures& a) {
 }
 
 std::string mould_table(const report_data& d) {
-  std::string out = "<table><tr><th>zone</th><th class=\"n\">hours with surface RH ≥ 80 %</th><th class=\"n\">longest "
-                    "run</th><th class=\"n\">highest surface RH</th><th class=\"n\">mean surface RH</th></tr>";
+  std::string out =
+      "<table><tr><th>zone</th><th class=\"n\">hours with surface RH ≥ 80 %</th><th class=\"n\">longest "
+      "run</th><th class=\"n\">highest surface RH</th><th class=\"n\">mean surface RH</th></tr>";
   for (const auto& z : d.zones) {
     const zone_period& t = z.series.total();
     const bool several_days = t.mould_longest_min >= 3 * 1440;
@@ -522,8 +542,8 @@ std::optional<band_thresholds> uniform_thresholds(const report_data& d) {
   for (const auto& z : d.zones) {
     if (!z.thresholds) return std::nullopt;
     const band_thresholds& t = *z.thresholds;
-    if (t.margin_warn_k != f.margin_warn_k || t.margin_alarm_k != f.margin_alarm_k || t.hysteresis_k != f.hysteresis_k ||
-        t.confirm_s != f.confirm_s || t.stale_after_s != f.stale_after_s) {
+    if (t.margin_warn_k != f.margin_warn_k || t.margin_alarm_k != f.margin_alarm_k ||
+        t.hysteresis_k != f.hysteresis_k || t.confirm_s != f.confirm_s || t.stale_after_s != f.stale_after_s) {
       return std::nullopt;
     }
   }
@@ -558,10 +578,10 @@ std::string verdict_text(const report_data& d) {
   if (episodes == 0) {
     v = "No zone reached the dew point in this period (" + std::to_string(d.zones.size()) + " zones). ";
   } else {
-    v = std::to_string(condensing_zones) + " of " + std::to_string(d.zones.size()) + " zones reached the dew point, for " +
-        duration_text(condensing_s) + " in total (zone time) in " + std::to_string(episodes) +
-        " episodes; the longest lasted " + duration_text(longest->duration_s) + " in " + longest_zone + " from " +
-        utc(longest->start) + ". ";
+    v = std::to_string(condensing_zones) + " of " + std::to_string(d.zones.size()) +
+        " zones reached the dew point, for " + duration_text(condensing_s) + " in total (zone time) in " +
+        std::to_string(episodes) + " episodes; the longest lasted " + duration_text(longest->duration_s) + " in " +
+        longest_zone + " from " + utc(longest->start) + ". ";
     v += without_warning == 0 ? "Every episode was preceded by an alarm. "
                               : std::to_string(without_warning) + " of them came without an earlier alarm. ";
   }
@@ -581,8 +601,8 @@ std::string verdict_text(const report_data& d) {
       worst_run_zone = z.review.zone;
     }
   }
-  v += worst_run_min > 0 ? "Surface RH stayed at or above 80 % for up to " + duration_text(worst_run_min * 60.0) + " (" +
-                               worst_run_zone + ")" + (worst_run_min >= 3 * 1440 ? ": a mould risk." : ".")
+  v += worst_run_min > 0 ? "Surface RH stayed at or above 80 % for up to " + duration_text(worst_run_min * 60.0) +
+                               " (" + worst_run_zone + ")" + (worst_run_min >= 3 * 1440 ? ": a mould risk." : ".")
                          : "Surface RH never reached 80 %.";
   return v;
 }
@@ -603,8 +623,9 @@ std::string render_html(const report_data& d) {
 
   out += "<h2>Thresholds in force</h2>\n";
   if (!d.has_settings) {
-    out += "<p>Not known: the report was made without <code>--config</code>, so the charts show no threshold lines "
-           "and the loops no supply temperature. Bands, alarms and margins are as the service recorded them.</p>\n";
+    out +=
+        "<p>Not known: the report was made without <code>--config</code>, so the charts show no threshold lines "
+        "and the loops no supply temperature. Bands, alarms and margins are as the service recorded them.</p>\n";
   } else if (const auto all = uniform_thresholds(d)) {
     const band_thresholds& u = *all;
     out += "<p>All " + std::to_string(d.zones.size()) + " zones: <b>tight</b> below " + fmt("%.2f K", u.margin_warn_k) +
@@ -647,8 +668,9 @@ std::string render_html(const report_data& d) {
     out += "</div>\n";
   }
   if (!d.loops.empty()) {
-    out += "<h2>Loops: supply setpoint</h2>\n<p class=\"small\">━ setpoint (from the service's setpoint events), ┈ "
-           "measured supply (mean of the loop's zones; needs --config), ╌ setpoint limits.</p>\n";
+    out +=
+        "<h2>Loops: supply setpoint</h2>\n<p class=\"small\">━ setpoint (from the service's setpoint events), ┈ "
+        "measured supply (mean of the loop's zones; needs --config), ╌ setpoint limits.</p>\n";
     for (const auto& l : d.loops) {
       std::optional<setpoint_config> sp;
       if (const auto it = d.setpoints.find(l.loop); it != d.setpoints.end()) sp = it->second;
@@ -657,11 +679,16 @@ std::string render_html(const report_data& d) {
       for (const auto& [k, s] : l.limited_s) total += s;
       out += "<table><tr><th>setpoint limited by</th><th class=\"n\">time</th></tr>";
       for (const auto& [k, s] : l.limited_s) {
-        const std::string what = k == "none" ? "nothing (dew point + margin)" : k == "max" ? "the maximum (fail-safe or high dew point)" : k == "min" ? "the minimum" : k == "rate" ? "the fall rate" : k;
-        out += "<tr>" + cell(esc(what)) + cell(duration_text(s) + fmt(" (%.0f %%)", total > 0 ? 100 * s / total : 0), true) +
-               "</tr>";
+        const std::string what = k == "none"   ? "nothing (dew point + margin)"
+                                 : k == "max"  ? "the maximum (fail-safe or high dew point)"
+                                 : k == "min"  ? "the minimum"
+                                 : k == "rate" ? "the fall rate"
+                                               : k;
+        out += "<tr>" + cell(esc(what)) +
+               cell(duration_text(s) + fmt(" (%.0f %%)", total > 0 ? 100 * s / total : 0), true) + "</tr>";
       }
-      out += "</table>\n<table><tr><th>most frequent reasons (# stands for a number)</th><th class=\"n\">time</th></tr>";
+      out +=
+          "</table>\n<table><tr><th>most frequent reasons (# stands for a number)</th><th class=\"n\">time</th></tr>";
       std::size_t shown = 0;
       for (const auto& [reason, s] : l.reasons_s) {
         if (++shown > 5) break;
@@ -672,8 +699,9 @@ std::string render_html(const report_data& d) {
   }
 
   out += "<div class=\"caution\">" + esc(k_caution) + "</div>\n";
-  out += "<p class=\"small\">Times are UTC. Band times and the shading come from the band events (to the second); "
-         "the margin line from the samples. Samples older than the roll-up age are hourly: their points are hours.</p>\n";
+  out +=
+      "<p class=\"small\">Times are UTC. Band times and the shading come from the band events (to the second); "
+      "the margin line from the samples. Samples older than the roll-up age are hourly: their points are hours.</p>\n";
   out += "</body>\n</html>\n";
   return out;
 }

@@ -30,8 +30,9 @@ void assign_text(std::string& out, sqlite3_stmt* stmt, int column) {
 }  // namespace
 
 std::string minute_columns(int schema_version) {
-  return std::string("minute_ms, zone, min_margin_k, max_dew_point_c, worst_band, air_temp_c, rh_pct, surface_min_c, "
-                     "supply_c, ") +
+  return std::string(
+             "minute_ms, zone, min_margin_k, max_dew_point_c, worst_band, air_temp_c, rh_pct, surface_min_c, "
+             "supply_c, ") +
          (schema_version >= 2 ? "surface_rh_pct" : "NULL");
 }
 
@@ -56,7 +57,8 @@ void read_hour_row(sqlite3_stmt* stmt, zone_period& out) {
   const std::int32_t minutes = int32_column(stmt, 2);
   out.sample_minutes = minutes;
   out.min_margin_k = optional_double(stmt, 3);
-  out.min_margin_at = sqlite3_column_type(stmt, 4) == SQLITE_NULL ? out.start : from_unix_ms(sqlite3_column_int64(stmt, 4));
+  out.min_margin_at =
+      sqlite3_column_type(stmt, 4) == SQLITE_NULL ? out.start : from_unix_ms(sqlite3_column_int64(stmt, 4));
   out.max_margin_k = optional_double(stmt, 5);
   out.mean_margin_k = mean_column(stmt, 6, minutes);
   out.max_dew_point_c = optional_double(stmt, 7);

@@ -13,9 +13,7 @@ void keep_min(std::optional<double>& into, const std::optional<double>& v) {
 void keep_max(std::optional<double>& into, const std::optional<double>& v) {
   if (v && (!into || *v > *into)) into = v;
 }
-minute_mean one_minute(const std::optional<double>& v) {
-  return v ? minute_mean{*v, 1} : minute_mean{};
-}
+minute_mean one_minute(const std::optional<double>& v) { return v ? minute_mean{*v, 1} : minute_mean{}; }
 
 }  // namespace
 
@@ -85,13 +83,14 @@ void merge_period(zone_period& into, const zone_period& later) {
   const bool contiguous = gap_min == 0;
   const bool inside = later.end() <= into.end();  // a late sample for an hour already rolled up
   const std::int32_t old_tail = into.mould_tail_min;
-  const std::int32_t head =
-      contiguous && into.mould_head_min == into.length_min ? into.length_min + later.mould_head_min : into.mould_head_min;
+  const std::int32_t head = contiguous && into.mould_head_min == into.length_min
+                                ? into.length_min + later.mould_head_min
+                                : into.mould_head_min;
   const std::int32_t tail = contiguous && later.mould_tail_min == later.length_min
                                 ? later.length_min + into.mould_tail_min
                                 : later.mould_tail_min;
-  into.mould_longest_min = std::max({into.mould_longest_min, later.mould_longest_min,
-                                     contiguous ? into.mould_tail_min + later.mould_head_min : 0});
+  into.mould_longest_min = std::max(
+      {into.mould_longest_min, later.mould_longest_min, contiguous ? into.mould_tail_min + later.mould_head_min : 0});
   into.mould_head_min = head;
   into.mould_tail_min = tail;
   into.mould_minutes += later.mould_minutes;
@@ -114,7 +113,8 @@ void merge_period(zone_period& into, const zone_period& later) {
   for (std::size_t b = 0; b < into.band_minutes.size(); ++b) into.band_minutes[b] += later.band_minutes[b];
   into.sample_minutes += later.sample_minutes;
   const timestamp end = std::max(into.end(), later.end());
-  into.length_min = static_cast<std::int32_t>(std::chrono::duration_cast<std::chrono::minutes>(end - into.start).count());
+  into.length_min =
+      static_cast<std::int32_t>(std::chrono::duration_cast<std::chrono::minutes>(end - into.start).count());
   if (inside && !contiguous) into.mould_tail_min = old_tail;
 }
 

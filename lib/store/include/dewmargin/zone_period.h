@@ -26,9 +26,7 @@ inline constexpr double k_mould_surface_rh_pct = 80.0;
 struct minute_mean {
   double mean = 0.0;
   std::int32_t minutes = 0;
-  [[nodiscard]] std::optional<double> value() const {
-    return minutes > 0 ? std::optional<double>(mean) : std::nullopt;
-  }
+  [[nodiscard]] std::optional<double> value() const { return minutes > 0 ? std::optional<double>(mean) : std::nullopt; }
   void add(const minute_mean& other);
 };
 
@@ -51,10 +49,10 @@ struct zone_period {
   std::optional<double> max_surface_rh_pct;
   minute_mean mean_surface_rh_pct;
   std::array<std::int32_t, k_band_count> band_minutes{};  // by the worst band of each minute
-  std::int32_t mould_minutes = 0;        // minutes with surface RH >= 80 %
-  std::int32_t mould_head_min = 0;       // of those, the run that starts at the period's start
-  std::int32_t mould_tail_min = 0;       // ... and the run that ends at its end
-  std::int32_t mould_longest_min = 0;    // the longest run inside the period
+  std::int32_t mould_minutes = 0;                         // minutes with surface RH >= 80 %
+  std::int32_t mould_head_min = 0;                        // of those, the run that starts at the period's start
+  std::int32_t mould_tail_min = 0;                        // ... and the run that ends at its end
+  std::int32_t mould_longest_min = 0;                     // the longest run inside the period
 
   [[nodiscard]] timestamp end() const { return start + std::chrono::minutes{length_min}; }
 };

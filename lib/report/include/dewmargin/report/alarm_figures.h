@@ -17,7 +17,7 @@ inline constexpr double k_target_alarms_per_10min = 1.0;
 inline constexpr int k_flood_start_alarms = 10;  // more than this in 10 minutes starts a flood
 inline constexpr int k_flood_end_alarms = 5;     // fewer than this in 10 minutes ends it
 inline constexpr double k_target_flood_pct = 1.0;
-inline constexpr int k_chatter_alarms = 3;       // this many within k_chatter_window_s
+inline constexpr int k_chatter_alarms = 3;  // this many within k_chatter_window_s
 inline constexpr double k_chatter_window_s = 60.0;
 inline constexpr double k_stale_alarm_s = 24.0 * 3600.0;
 

@@ -22,8 +22,8 @@ struct event_facts {
   std::optional<bool> alarm_acknowledged;
   std::optional<timestamp> until;  // shelve: shelved until
   std::string reason;
-  std::string limited;  // setpoint: none, min, max, rate
-  std::string topic;    // input: the input's topic
+  std::string limited;      // setpoint: none, min, max, rate
+  std::string topic;        // input: the input's topic
   bool suppressed = false;  // carries "suppressed_by" (suppressed by design)
   bool valid = true;        // false: the stored JSON is not an object (only the columns are known)
 };

@@ -42,10 +42,10 @@ struct setpoint_step {
 
 struct loop_review {
   std::string loop;
-  std::vector<setpoint_step> steps;                 // from setpoint events, in order
-  std::optional<double> setpoint_at_start_c;        // the last setpoint before the period
-  std::vector<minute_mean> supply_c;                // per bucket, mean of its zones (needs --config)
-  std::map<std::string, double> limited_s;          // time at each limit: none, min, max, rate
+  std::vector<setpoint_step> steps;                       // from setpoint events, in order
+  std::optional<double> setpoint_at_start_c;              // the last setpoint before the period
+  std::vector<minute_mean> supply_c;                      // per bucket, mean of its zones (needs --config)
+  std::map<std::string, double> limited_s;                // time at each limit: none, min, max, rate
   std::vector<std::pair<std::string, double>> reasons_s;  // reason (numbers dropped) → time, most first
 };
 
@@ -63,8 +63,8 @@ struct report_data {
   std::string db_label;
   std::string config_label;
   series_layout layout;
-  std::vector<zone_report> zones;  // ordered by id
-  std::vector<loop_review> loops;  // ordered by id
+  std::vector<zone_report> zones;                    // ordered by id
+  std::vector<loop_review> loops;                    // ordered by id
   std::map<std::string, setpoint_config> setpoints;  // by loop, from --config
   alarm_figures alarms;
   std::size_t events_read = 0;

@@ -51,13 +51,13 @@ struct band_span {
 
 struct zone_review {
   std::string zone;
-  std::vector<band_span> spans;  // the whole period, in order, for the timeline's shading
+  std::vector<band_span> spans;               // the whole period, in order, for the timeline's shading
   std::array<double, k_band_count> band_s{};  // seconds in each band (band's order)
   double no_data_s = 0.0;
-  std::vector<timestamp> raises;      // alarms raised in the period
-  std::vector<double> ack_delays_s;   // raise → ack, for the raises acknowledged in the period
-  int unacknowledged_at_end = 0;      // raised in the period, not acknowledged by its end
-  std::vector<double> alarm_active_s; // each period of an active alarm (for stale alarms)
+  std::vector<timestamp> raises;       // alarms raised in the period
+  std::vector<double> ack_delays_s;    // raise → ack, for the raises acknowledged in the period
+  int unacknowledged_at_end = 0;       // raised in the period, not acknowledged by its end
+  std::vector<double> alarm_active_s;  // each period of an active alarm (for stale alarms)
   std::vector<condensing_episode> condensing;
   double stale_input_s = 0.0;
   int shelves = 0;
