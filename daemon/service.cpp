@@ -9,6 +9,7 @@
 
 #include "dewmargin/config_loader.h"
 #include "dewmargin/engine.h"
+#include "dewmargin/json_dump.h"
 #include "dewmargin/mqtt_link.h"
 #include "dewmargin/store_writer.h"
 #include "dewmargin/version.h"
@@ -38,7 +39,7 @@ std::string status_payload(const site_config& cfg, const char* state, const std:
   j["version"] = k_version;
   j["ts"] = format_iso8601_utc(wall_now());
   if (!reason.empty()) j["reason"] = reason;
-  return j.dump();
+  return json_dump(j);
 }
 
 std::string describe_event(const event_record& e) {

@@ -5,6 +5,7 @@
 #include <nlohmann/json.hpp>
 #include <sstream>
 
+#include "dewmargin/json_dump.h"
 #include "model/moist_air.h"
 
 namespace dewmargin::sim {
@@ -181,7 +182,7 @@ std::string summary_json(const simulation& sim) {
       j["commands"]["dew_point_request_c"] = {{"min_c", c.dew_point_request.min}, {"max_c", c.dew_point_request.max}};
     }
   }
-  return j.dump();
+  return json_dump(j);
 }
 
 }  // namespace dewmargin::sim
