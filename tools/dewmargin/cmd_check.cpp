@@ -7,6 +7,7 @@
 
 #include "commands.h"
 #include "dewmargin/config_loader.h"
+#include "dewmargin/input_decoder.h"
 
 namespace dewmargin::cli {
 namespace {
@@ -43,14 +44,20 @@ const char* unit_label(input_unit u) {
   return "";
 }
 
+std::string quoted_words(const std::vector<std::string>& words) {
+  std::string s;
+  for (std::size_t i = 0; i < words.size(); ++i) s += (i == 0 ? " \"" : ", \"") + words[i] + "\"";
+  return s;
+}
+
 // topic[field] unit, then what is special about this input.
 std::string describe_input(const input_config& in) {
   std::string s = in.topic;
   if (!in.field.empty()) s += "[" + in.field + "]";
   if (in.unit != input_unit::none) s += std::string(" ") + unit_label(in.unit);
   if (!in.active.empty()) {
-    s += " active:";
-    for (std::size_t i = 0; i < in.active.size(); ++i) s += (i == 0 ? " \"" : ", \"") + in.active[i] + "\"";
+    s += " active:" + quoted_words(in.active);
+    s += std::string(in.inactive.empty() ? " inactive (default):" : " inactive:") + quoted_words(inactive_payloads(in));
   }
   if (in.stale_after_s)
     s += *in.stale_after_s == 0.0 ? " (never stale)" : " (stale after " + num(*in.stale_after_s) + " s)";

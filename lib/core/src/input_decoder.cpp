@@ -80,21 +80,6 @@ std::string lower(std::string_view s) {
   return out;
 }
 
-// Compared without regard to case or surrounding blanks; numbers by value, so that a
-// JSON 1.0 (or a bare "1.0") counts as "1".
-bool matches_any(std::string_view text, const std::vector<std::string>& words) {
-  const std::string needle = lower(trim(text));
-  const auto number = parse_bare_number(needle);
-  for (const auto& w : words) {
-    if (lower(trim(w)) == needle) return true;
-    if (number) {
-      const auto word_number = parse_bare_number(w);
-      if (word_number && word_number.value() == number.value()) return true;
-    }
-  }
-  return false;
-}
-
 std::string word_list(const std::vector<std::string>& words) {
   std::string out;
   for (const auto& w : words) out += (out.empty() ? "" : ", ") + excerpt(w);
@@ -109,6 +94,19 @@ std::string format_range(const char* what, double v, const value_range& r, const
 }
 
 }  // namespace
+
+bool matches_switch_word(std::string_view text, const std::vector<std::string>& words) {
+  const std::string needle = lower(trim(text));
+  const auto number = parse_bare_number(needle);
+  for (const auto& w : words) {
+    if (lower(trim(w)) == needle) return true;
+    if (number) {
+      const auto word_number = parse_bare_number(w);
+      if (word_number && word_number.value() == number.value()) return true;
+    }
+  }
+  return false;
+}
 
 const char* input_kind_name(input_kind k) {
   switch (k) {
@@ -166,9 +164,9 @@ result<bool> decode_switch(std::string_view payload, const input_config& cfg) {
     }
   }
   if (trim(text).empty()) return make_error(error_code::parse_error, "empty payload");
-  if (matches_any(text, cfg.active)) return true;
+  if (matches_switch_word(text, cfg.active)) return true;
   const std::vector<std::string> inactive = inactive_payloads(cfg);
-  if (matches_any(text, inactive)) return false;
+  if (matches_switch_word(text, inactive)) return false;
   return make_error(error_code::parse_error, "payload '" + excerpt(trim(text)) + "' is neither active (" +
                                                  word_list(cfg.active) + ") nor inactive (" + word_list(inactive) +
                                                  ")");
@@ -185,7 +183,7 @@ std::vector<std::string> inactive_payloads(const input_config& cfg) {
   if (!cfg.inactive.empty()) return cfg.inactive;
   std::vector<std::string> out;
   for (const auto& w : default_inactive_payloads()) {
-    if (!matches_any(w, cfg.active)) out.push_back(w);
+    if (!matches_switch_word(w, cfg.active)) out.push_back(w);
   }
   return out;
 }

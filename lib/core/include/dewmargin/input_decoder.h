@@ -28,6 +28,10 @@ result<double> decode_number(std::string_view payload, const input_config& cfg, 
 // reading: junk on a moisture switch must not read as "dry".
 result<bool> decode_switch(std::string_view payload, const input_config& cfg);
 
+// Does `payload` match one of `words`? Without regard to case or surrounding blanks;
+// numbers by value, so that a JSON 1.0 (or a bare "1.0") counts as "1".
+bool matches_switch_word(std::string_view payload, const std::vector<std::string>& words);
+
 // The payloads that mean "inactive" when an input lists none of its own.
 const std::vector<std::string>& default_inactive_payloads();
 // The inactive payloads in force for `cfg`: its own `inactive` list, or the defaults
