@@ -70,4 +70,22 @@ set -e
 expect_rc 2 "lone comma"
 expect_line "$work/err" "comma.yaml:1:1: the file holds no config" "lone comma"
 
+# 7. A password file open to group or others: exit 2, one line naming the file and its mode.
+secret=$work/broker.secret
+printf 's3cret\n' >"$secret"
+chmod 644 "$secret"
+sed -e "s|client_id: dewmargin-test|client_id: dewmargin-test\n  username: gateway\n  password_file: $secret|" \
+  "$data/config/good/minimal.yaml" >"$work/with_secret.yaml"
+run check "$work/with_secret.yaml"
+expect_rc 2 "password file 0644"
+expect_line "$work/err" "^$work/with_secret.yaml: broker.password_file $secret: mode 0644 gives group or others access; allow the owner only \(chmod 600\)$" \
+  "password file 0644"
+lines=$(wc -l <"$work/err")
+[[ $lines -eq 1 ]] || fail "password file 0644: $lines lines on stderr, expected 1"
+grep -q s3cret "$work/err" "$work/out" && fail "password file 0644: the secret was printed"
+chmod 600 "$secret"
+run check "$work/with_secret.yaml"
+expect_rc 0 "password file 0600"
+expect_line "$work/out" "password from $secret" "password file 0600"
+
 finish

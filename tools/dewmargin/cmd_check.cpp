@@ -8,6 +8,8 @@
 #include "commands.h"
 #include "dewmargin/config_loader.h"
 #include "dewmargin/input_decoder.h"
+#include "dewmargin/named_files_check.h"
+#include "dewmargin/safe_text.h"
 
 namespace dewmargin::cli {
 namespace {
@@ -184,6 +186,11 @@ int run_check(const std::string& file, std::ostream& out, std::ostream& err) {
   const auto loaded = load_config_file(file);
   if (!loaded.ok()) {
     for (const auto& d : loaded.errors) err << d.to_string() << '\n';
+    return k_exit_usage;
+  }
+  const auto file_problems = check_named_files(*loaded.config);
+  if (!file_problems.empty()) {
+    for (const auto& p : file_problems) err << printable_text(file) << ": " << p << '\n';
     return k_exit_usage;
   }
   print_summary(file, *loaded.config, out);
