@@ -412,16 +412,20 @@ const text_case k_rule_cases[] = {
      "zone 'z1' window_contact: missing required key 'active'"},
     {"active_not_a_list", k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: open}\n", 11, 44,
      "'active' must be a non-empty list of payloads"},
-    {"inactive_not_a_list", k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: [open], inactive: shut}\n", 11, 62,
+    {"inactive_not_a_list",
+     k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: [open], inactive: shut}\n", 11, 62,
      "'inactive' must be a non-empty list of payloads"},
-    {"inactive_empty_word", k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: [open], inactive: ['']}\n", 11, 63,
+    {"inactive_empty_word",
+     k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: [open], inactive: ['']}\n", 11, 63,
      "an 'inactive' payload must not be empty"},
     {"word_both_active_and_inactive",
-     k_head + k_loop + k_zone_block + "    condensation_switch: {topic: b/w, active: [wet, 1], inactive: [dry, '1.0']}\n", 11, 73,
-     "zone 'z1' condensation_switch: payload '1.0' is listed as both active and inactive"},
+     k_head + k_loop + k_zone_block +
+         "    condensation_switch: {topic: b/w, active: [wet, 1], inactive: [dry, '1.0']}\n",
+     11, 73, "zone 'z1' condensation_switch: payload '1.0' is listed as both active and inactive"},
     {"inactive_on_a_sensor",
-     k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t, inactive: [x]}, humidity: {topic: b/h}}\n", 7, 47,
-     "unknown key 'inactive' in zone 'z1' air_temp"},
+     k_head + k_loop +
+         "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t, inactive: [x]}, humidity: {topic: b/h}}\n",
+     7, 47, "unknown key 'inactive' in zone 'z1' air_temp"},
     {"valve_same_payloads", k_head + k_loop + k_zone_block + "    valve: {topic: b/v, open: x, closed: x}\n", 11, 42,
      "zone 'z1' valve: 'open' and 'closed' payloads must differ"},
     {"zone_id_with_slash",
@@ -478,24 +482,33 @@ const text_case k_rule_cases[] = {
     // Text that is not UTF-8, or control characters: located at the byte, before any YAML.
     {"site_latin1", "site: caf\xE9\n" + k_head.substr(8) + k_loop + k_zone, 1, 10,
      "byte 0xE9 is not UTF-8 text; a config file must be saved as UTF-8"},
-    {"zone_id_invalid_byte", k_head + k_loop + "zones:\n  - {id: z\x80, loop: la, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n", 7,
-     11, "byte 0x80 is not UTF-8 text"},
-    {"topic_cut_character", k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t\xC3}, humidity: {topic: b/h}}\n",
-     7, 45, "byte 0xC3 is not UTF-8 text"},
-    {"active_word_overlong", k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: [\xC0\xAFopen]}\n", 11, 45,
+    {"zone_id_invalid_byte",
+     k_head + k_loop + "zones:\n  - {id: z\x80, loop: la, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n", 7, 11,
+     "byte 0x80 is not UTF-8 text"},
+    {"topic_cut_character",
+     k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t\xC3}, humidity: {topic: b/h}}\n", 7, 45,
+     "byte 0xC3 is not UTF-8 text"},
+    {"active_word_overlong",
+     k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: [\xC0\xAFopen]}\n", 11, 45,
      "byte 0xC0 is not UTF-8 text"},
-    {"valve_payload_surrogate", k_head + k_loop + k_zone_block + "    valve: {topic: b/v, open: \xED\xA0\x80}\n", 11, 31,
-     "byte 0xED is not UTF-8 text"},
-    {"raw_control_character", "site: a\x01" "b\n" + k_head.substr(8) + k_loop + k_zone, 1, 8,
-     "control character U+0001 is not allowed in a config file"},
+    {"valve_payload_surrogate", k_head + k_loop + k_zone_block + "    valve: {topic: b/v, open: \xED\xA0\x80}\n", 11,
+     31, "byte 0xED is not UTF-8 text"},
+    {"raw_control_character",
+     "site: a\x01"
+     "b\n" +
+         k_head.substr(8) + k_loop + k_zone,
+     1, 8, "control character U+0001 is not allowed in a config file"},
     {"raw_escape_character", k_head + "publish: {prefix: dm\x1b[2J}\n" + k_loop + k_zone, 4, 21,
      "control character U+001B is not allowed in a config file"},
-    {"raw_nul", k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: \"b/t" + std::string(1, '\0') +
+    {"raw_nul",
+     k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: \"b/t" + std::string(1, '\0') +
          "\"}, humidity: {topic: b/h}}\n",
-     7, 46,
-     "control character U+0000 is not allowed in a config file"},
-    {"raw_c1_control", "site: a\xC2\x85" "b\n" + k_head.substr(8) + k_loop + k_zone, 1, 8,
-     "control character U+0085 is not allowed in a config file"},
+     7, 46, "control character U+0000 is not allowed in a config file"},
+    {"raw_c1_control",
+     "site: a\xC2\x85"
+     "b\n" +
+         k_head.substr(8) + k_loop + k_zone,
+     1, 8, "control character U+0085 is not allowed in a config file"},
     {"escaped_nul_in_site", "site: \"a\\0b\"\n" + k_head.substr(8) + k_loop + k_zone, 1, 7,
      "'site' must not hold a control character (U+0000 at byte 2)"},
     {"escaped_nul_in_topic",
@@ -519,7 +532,8 @@ TEST(ConfigLoader, ClockDefaultsToWallAndReadsEventTime) {
   const auto wall = load_config_text(k_head + k_loop + k_zone, "t.yaml");
   ASSERT_TRUE(wall.ok()) << all_errors(wall);
   EXPECT_EQ(wall.config->clock.source, clock_source::wall);
-  const auto events = load_config_text(k_head + "clock: {source: readings, field: /time}\n" + k_loop + k_zone, "t.yaml");
+  const auto events =
+      load_config_text(k_head + "clock: {source: readings, field: /time}\n" + k_loop + k_zone, "t.yaml");
   ASSERT_TRUE(events.ok()) << all_errors(events);
   EXPECT_EQ(events.config->clock.source, clock_source::readings);
   EXPECT_EQ(events.config->clock.field, "/time");
@@ -621,9 +635,11 @@ TEST(ConfigLoader, ReportsAtMostTenLinesOfBytesThatAreNotText) {
 }
 
 TEST(ConfigLoader, AcceptsAByteOrderMarkAndCharactersBeyondAscii) {
-  const auto r = load_config_text("\xEF\xBB\xBF" "site: Caf\xC3\xA9 \xE2\x82\xAC \xF0\x9F\x92\xA7\n" + k_head.substr(8) + k_loop +
-                                      k_zone,
-                                  "t.yaml");
+  const auto r = load_config_text(
+      "\xEF\xBB\xBF"
+      "site: Caf\xC3\xA9 \xE2\x82\xAC \xF0\x9F\x92\xA7\n" +
+          k_head.substr(8) + k_loop + k_zone,
+      "t.yaml");
   ASSERT_TRUE(r.ok()) << all_errors(r);
   EXPECT_EQ(r.config->site, "Caf\xC3\xA9 \xE2\x82\xAC \xF0\x9F\x92\xA7");
 }

@@ -92,11 +92,16 @@ TEST(DecodeNumber, QuotesBadPayloadsAsPrintableUtf8) {
        "payload '" + std::string(38, '2') + "...' is not a number"},
       {"character that fits", std::string(38, '3') + "\xC2\xB0", error_code::parse_error,
        "payload '" + std::string(38, '3') + "\xC2\xB0' is not a number"},
-      {"NUL inside", std::string("21\0" "5", 4), error_code::parse_error, "payload '21\\x005' is not a number"},
+      {"NUL inside",
+       std::string("21\0"
+                   "5",
+                   4),
+       error_code::parse_error, "payload '21\\x005' is not a number"},
       {"terminal escape", "\x1b[2J21", error_code::parse_error, "payload '\\x1b[2J21' is not a number"},
   };
   for (const auto& c : cases) expect_rejected(decode_number(c.payload, bare(), input_kind::air_temp), c);
-  const auto j = decode_number(R"({"t": "x)" + std::string(45, 'y') + "\xC2\xB0\"}", json_at("/t"), input_kind::air_temp);
+  const auto j =
+      decode_number(R"({"t": "x)" + std::string(45, 'y') + "\xC2\xB0\"}", json_at("/t"), input_kind::air_temp);
   ASSERT_FALSE(j.ok());
   EXPECT_EQ(j.err().message, "field /t: payload 'x" + std::string(39, 'y') + "...' is not a number");
   const auto invalid_json = decode_number("{\"t\": \"\x80\"}", json_at("/t"), input_kind::air_temp);
@@ -202,7 +207,7 @@ struct switch_case {
 TEST(DecodeSwitch, MatchesActiveWordsIgnoringCaseAndBlanks) {
   const input_config cfg = switch_of({"1", "true", "wet"});
   const std::vector<switch_case> cases = {
-      {"1", true},  {"true", true},   {"TRUE", true}, {"Wet", true},     {"  wet\r\n", true},
+      {"1", true},  {"true", true},   {"TRUE", true}, {"Wet", true}, {"  wet\r\n", true},
       {"0", false}, {"false", false}, {"dry", false}, {"1.0", true},  // the same number as "1"
   };
   for (const auto& c : cases) {
@@ -236,7 +241,8 @@ TEST(DecodeSwitch, ReadsTheDefaultInactiveWordsAndNumbersByValue) {
     ASSERT_TRUE(v.ok()) << "'" << word << "': " << v.err().message;
     EXPECT_FALSE(v.value()) << "'" << word << "'";
   }
-  EXPECT_EQ(default_inactive_payloads(), (std::vector<std::string>{"0", "false", "off", "no", "dry", "closed", "normal"}));
+  EXPECT_EQ(default_inactive_payloads(),
+            (std::vector<std::string>{"0", "false", "off", "no", "dry", "closed", "normal"}));
 }
 
 TEST(DecodeSwitch, ActiveWinsOverADefaultInactiveWord) {

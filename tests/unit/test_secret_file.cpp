@@ -23,8 +23,8 @@ class SecretFile : public ::testing::Test {
   }
   void TearDown() override { fs::remove_all(dir_); }
   // A password file as the README asks for it: the owner's alone.
-  fs::path write(const std::string& name, const std::string& text, fs::perms mode = fs::perms::owner_read |
-                                                                                    fs::perms::owner_write) {
+  fs::path write(const std::string& name, const std::string& text,
+                 fs::perms mode = fs::perms::owner_read | fs::perms::owner_write) {
     const fs::path p = dir_ / name;
     std::ofstream(p, std::ios::binary) << text;
     fs::permissions(p, mode);

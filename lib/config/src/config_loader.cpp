@@ -33,9 +33,7 @@ class document_starts : public YAML::EventHandler {
   void OnDocumentEnd() override {}
   void OnNull(const YAML::Mark& mark, YAML::anchor_t) override { node(mark); }
   void OnAlias(const YAML::Mark& mark, YAML::anchor_t) override { node(mark); }
-  void OnScalar(const YAML::Mark& mark, const std::string&, YAML::anchor_t, const std::string&) override {
-    node(mark);
-  }
+  void OnScalar(const YAML::Mark& mark, const std::string&, YAML::anchor_t, const std::string&) override { node(mark); }
   void OnSequenceStart(const YAML::Mark& mark, const std::string&, YAML::anchor_t, YAML::EmitterStyle::value) override {
     node(mark);
   }

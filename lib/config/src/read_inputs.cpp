@@ -53,7 +53,6 @@ std::string unit_list(const std::vector<unit_choice>& choices) {
   return out;
 }
 
-
 // `active:` (required) or `inactive:` (optional; the decoder's defaults otherwise): a
 // non-empty list of payload words.
 bool read_word_list(const map_reader& m, const char* key, const char* example, std::vector<std::string>& words) {
@@ -62,8 +61,8 @@ bool read_word_list(const map_reader& m, const char* key, const char* example, s
   const YAML::Node& node = *m.value(key);
   const source_mark at = m.value_mark(key);
   if (!node.IsSequence() || node.size() == 0) {
-    m.diag().error(at, "'" + name + "' must be a non-empty list of payloads, e.g. [" + example + "], got " +
-                           describe(node));
+    m.diag().error(
+        at, "'" + name + "' must be a non-empty list of payloads, e.g. [" + example + "], got " + describe(node));
     return false;
   }
   bool ok = true;

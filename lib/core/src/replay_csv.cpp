@@ -74,8 +74,8 @@ result<std::vector<std::string>> read_record(std::string_view text, std::size_t&
 
 // Times the service can meet: from the Unix epoch to the last instant ISO 8601 writes with
 // four digits. Outside it, the seconds would wrap or stand for a year no timestamp shows.
-constexpr std::int64_t k_first_ms = 0;                     // 1970-01-01T00:00:00Z
-constexpr std::int64_t k_end_ms = 253'402'300'800'000;     // 10000-01-01T00:00:00Z
+constexpr std::int64_t k_first_ms = 0;                  // 1970-01-01T00:00:00Z
+constexpr std::int64_t k_end_ms = 253'402'300'800'000;  // 10000-01-01T00:00:00Z
 
 std::string quoted(const std::string& text) { return "'" + text_excerpt(text, 40) + "'"; }
 
