@@ -11,7 +11,7 @@ namespace {
 constexpr int k_max_reported_lines = 10;
 
 std::string hex_byte(unsigned char b) {
-  char buf[8];
+  char buf[16];
   std::snprintf(buf, sizeof buf, "0x%02X", b);
   return buf;
 }

@@ -47,7 +47,7 @@ std::size_t sequence_length(std::string_view s, std::size_t pos, std::size_t& ba
 }
 
 void append_escape(std::string& out, unsigned code) {
-  char buf[8];
+  char buf[16];
   switch (code) {
     case '\n':
       out += "\\n";
