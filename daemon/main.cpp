@@ -4,6 +4,7 @@
 
 #include "dewmargin/caution.h"
 #include "dewmargin/config_loader.h"
+#include "dewmargin/named_files_check.h"
 #include "dewmargin/version.h"
 #include "logging.h"
 #include "service.h"
@@ -38,6 +39,9 @@ int main(int argc, char** argv) {
       for (const auto& d : loaded.errors) std::cerr << d.to_string() << '\n';
       return 2;
     }
+    const auto file_problems = dewmargin::check_named_files(*loaded.config);
+    for (const auto& p : file_problems) std::cerr << config_path << ": " << p << '\n';
+    if (!file_problems.empty()) return 2;
     std::cout << config_path << ": valid (" << loaded.config->zones.size() << " zones, "
               << loaded.config->loops.size() << " loops)\n";
     return 0;

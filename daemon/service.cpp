@@ -9,7 +9,9 @@
 
 #include "dewmargin/config_loader.h"
 #include "dewmargin/engine.h"
+#include "dewmargin/json_dump.h"
 #include "dewmargin/mqtt_link.h"
+#include "dewmargin/restart_needed.h"
 #include "dewmargin/store_writer.h"
 #include "dewmargin/tick_driver.h"
 #include "dewmargin/version.h"
@@ -47,7 +49,7 @@ std::string status_payload(const site_config& cfg, const char* state, const std:
   j["version"] = k_version;
   j["ts"] = format_iso8601_utc(wall_now());
   if (!reason.empty()) j["reason"] = reason;
-  return j.dump();
+  return json_dump(j);
 }
 
 std::string describe_event(const event_record& e) {
@@ -373,22 +375,11 @@ class service {
       notifier_.ready("reload rejected; previous config in force");
       return;
     }
-    const site_config& old_cfg = core_->config();
-    const site_config& new_cfg = *loaded.config;
-    if (new_cfg.broker.uri != old_cfg.broker.uri || new_cfg.broker.client_id != old_cfg.broker.client_id ||
-        new_cfg.broker.username != old_cfg.broker.username ||
-        new_cfg.broker.password_file != old_cfg.broker.password_file || new_cfg.storage.path != old_cfg.storage.path ||
-        new_cfg.publish.prefix != old_cfg.publish.prefix) {
-      log_->warn("broker, storage or publish.prefix settings changed: they take effect at the next restart");
+    for (const auto& setting : restart_needed(core_->config(), *loaded.config)) {
+      log_->warn("reload: {} changed; it takes effect at the next restart", setting);
     }
     auto fresh = std::make_unique<engine>(std::move(*loaded.config));
-    if (fresh->subscriptions() != core_->subscriptions()) {
-      log_->warn("input topics changed: they take effect at the next restart (subscriptions are kept)");
-    }
     if (!apply_log_level(fresh->config())) log_->warn("logging level unchanged");
-    if (fresh->config().clock.source != core_->config().clock.source) {
-      log_->warn("clock source changed: it takes effect at the next restart");
-    }
     if (!started_) {
       // Event time has not started yet: nothing to carry over.
       core_ = std::move(fresh);

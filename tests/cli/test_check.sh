@@ -48,4 +48,44 @@ lines=$(wc -l <"$work/err")
 (cd "$data/config/good" && "$bin" check minimal.yaml >"$work/out" 2>"$work/err") || fail "relative path: exit $?"
 expect_line "$work/out" '^minimal\.yaml: ok$' "relative path"
 
+# 5. A config that is not UTF-8 text: exit 2, each place located, the bytes not echoed raw.
+bad=$data/config/bad/not_utf8.yaml
+run check "$bad"
+expect_rc 2 "not_utf8.yaml"
+expect_line "$work/err" "^$bad:4:10: byte 0xE9 is not UTF-8 text; a config file must be saved as UTF-8$" "not_utf8.yaml site"
+expect_line "$work/err" "^$bad:16:35: byte 0xE2 is not UTF-8 text" "not_utf8.yaml topic"
+LC_ALL=C grep -q $'[\x80-\xff]' "$work/err" && fail "not_utf8.yaml: raw bytes on stderr: $(cat -v "$work/err")"
+
+# 6. Junk: a file of random bytes, and a lone comma (yaml-cpp's LoadAll never returned on it).
+head -c 3000 /dev/urandom >"$work/junk.yaml"
+run check "$work/junk.yaml"
+expect_rc 2 "random bytes"
+expect_line "$work/err" "^$work/junk.yaml:[0-9]+:[0-9]+: " "random bytes located"
+iconv -f UTF-8 -t UTF-8 "$work/err" >/dev/null 2>&1 || fail "random bytes: stderr is not UTF-8: $(cat -v "$work/err" | head -c 400)"
+printf ',\n' >"$work/comma.yaml"
+set +e
+timeout 20 "$bin" check "$work/comma.yaml" >"$work/out" 2>"$work/err"
+rc=$?
+set -e
+expect_rc 2 "lone comma"
+expect_line "$work/err" "comma.yaml:1:1: the file holds no config" "lone comma"
+
+# 7. A password file open to group or others: exit 2, one line naming the file and its mode.
+secret=$work/broker.secret
+printf 's3cret\n' >"$secret"
+chmod 644 "$secret"
+sed -e "s|client_id: dewmargin-test|client_id: dewmargin-test\n  username: gateway\n  password_file: $secret|" \
+  "$data/config/good/minimal.yaml" >"$work/with_secret.yaml"
+run check "$work/with_secret.yaml"
+expect_rc 2 "password file 0644"
+expect_line "$work/err" "^$work/with_secret.yaml: broker.password_file $secret: mode 0644 gives group or others access; allow the owner only \(chmod 600\)$" \
+  "password file 0644"
+lines=$(wc -l <"$work/err")
+[[ $lines -eq 1 ]] || fail "password file 0644: $lines lines on stderr, expected 1"
+grep -q s3cret "$work/err" "$work/out" && fail "password file 0644: the secret was printed"
+chmod 600 "$secret"
+run check "$work/with_secret.yaml"
+expect_rc 0 "password file 0600"
+expect_line "$work/out" "password from $secret" "password file 0600"
+
 finish

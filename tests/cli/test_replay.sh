@@ -28,10 +28,40 @@ printf 'ts,topic,payload\n0,r/a/temp,24\n5,r/a/rh\n' >"$work/bad.csv"
 run replay --config "$site" --readings "$work/bad.csv"
 expect_rc 2 "malformed CSV"
 expect_line "$work/err" "^$work/bad.csv:3: expected 3 fields ts,topic,payload, found 2$" "malformed CSV line"
-printf '0,r/a/temp,24\nsoon,r/a/rh,50\n' >"$work/bad_ts.csv"
+printf 'ts,topic,payload\n0,r/a/temp,24\nsoon,r/a/rh,50\n' >"$work/bad_ts.csv"
 run replay --config "$site" --readings "$work/bad_ts.csv"
 expect_rc 2 "bad ts"
-expect_line "$work/err" "bad_ts.csv:2: ts: 'soon' is not an ISO 8601 time" "bad ts line"
+expect_line "$work/err" "bad_ts.csv:3: ts: 'soon' is not an ISO 8601 time" "bad ts line"
+
+# 3b. Times out of range, a missing header, NUL bytes: exit 2 with the line; a byte-order
+#     mark before the header is skipped.
+for ts in 1e300 99999999999999999999 1969-12-31T00:00:00Z; do
+  printf 'ts,topic,payload\n0,r/a/temp,24\n%s,r/a/rh,50\n' "$ts" >"$work/range.csv"
+  run replay --config "$site" --readings "$work/range.csv"
+  expect_rc 2 "ts $ts"
+  expect_line "$work/err" "^$work/range.csv:3: ts '$ts' is out of range: a time must lie from 1970-01-01 to 9999-12-31$" \
+    "ts $ts"
+  [[ -s $work/out ]] && fail "ts $ts: output before the error: $(head -c 300 "$work/out")"
+done
+printf '0,r/a/temp,24\n5,r/a/rh,50\n' >"$work/no_header.csv"
+run replay --config "$site" --readings "$work/no_header.csv"
+expect_rc 2 "no header"
+expect_line "$work/err" "^$work/no_header.csv:1: the first record must be the header ts,topic,payload, found '0,r/a/temp,24'$" \
+  "no header"
+printf 'ts,topic,payload\n0,r/a/te\0mp,24\n' >"$work/nul_topic.csv"
+run replay --config "$site" --readings "$work/nul_topic.csv"
+expect_rc 2 "NUL in topic"
+expect_line "$work/err" "^$work/nul_topic.csv:2: NUL byte in the topic at byte 7$" "NUL in topic"
+printf 'ts,topic,payload\n0,r/a/temp,2\0004\n' >"$work/nul_payload.csv"
+run replay --config "$site" --readings "$work/nul_payload.csv"
+expect_rc 2 "NUL in payload"
+expect_line "$work/err" "^$work/nul_payload.csv:2: NUL byte in the payload at byte 2$" "NUL in payload"
+printf '\xef\xbb\xbfts,topic,payload\n0,r/a/temp,24\n' >"$work/bom.csv"
+run replay --config "$site" --readings "$work/bom.csv" --start 2026-07-14T13:00:00Z
+expect_rc 0 "byte-order mark"
+[[ -s $work/err ]] && fail "byte-order mark: unexpected stderr: $(cat "$work/err")"
+run replay --help
+expect_line "$work/out" "first line must be the header ts,topic,payload" "--help names the header"
 
 # 4. A missing readings file and a bad config are usage errors.
 run replay --config "$site" --readings "$work/none.csv"

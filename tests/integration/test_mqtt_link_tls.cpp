@@ -2,6 +2,7 @@
 // and server certificate made by openssl for this test run.
 #include <gtest/gtest.h>
 
+#include <filesystem>
 #include <fstream>
 
 #include "dewmargin/mqtt_link.h"
@@ -32,6 +33,7 @@ class MqttLinkTls : public ::testing::Test {
   static std::string write_password_file(const mosquitto_broker& broker, const std::string& password) {
     const auto p = broker.dir() / "link.secret";
     std::ofstream(p) << password << "\n";
+    std::filesystem::permissions(p, std::filesystem::perms::owner_read | std::filesystem::perms::owner_write);
     return p.string();
   }
 

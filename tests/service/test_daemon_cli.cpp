@@ -75,6 +75,35 @@ TEST(DaemonCommandLine, MissingPasswordFileIsARuntimeFailureNamingThePath) {
   EXPECT_FALSE(std::filesystem::exists(dir.path() / "h.db")) << "the broker settings are checked before the disk";
 }
 
+// README: the broker password file is the owner's alone. One open to group or others is
+// refused by --check (exit 2) and by the service (exit 1, like a missing file).
+TEST(DaemonCommandLine, PasswordFileOpenToOthersIsRefusedNamingItsMode) {
+  temp_dir dir("dewmargind-cli");
+  const auto config = dir.path() / "site.yaml";
+  const auto secret = dir.path() / "broker.secret";
+  std::ofstream(secret) << "s3cret\n";
+  std::filesystem::permissions(secret, std::filesystem::perms::owner_read | std::filesystem::perms::owner_write |
+                                           std::filesystem::perms::group_read | std::filesystem::perms::others_read);
+  {
+    std::string text = service_test_config("tcp://127.0.0.1:1", dir.path() / "h.db");
+    text.replace(text.find("client_id: dewmargin-service-test"), std::string("client_id: dewmargin-service-test").size(),
+                 "client_id: c, username: u, password_file: " + secret.string());
+    std::ofstream(config) << text;
+  }
+  const std::string why = secret.string() + ": mode 0644 gives group or others access";
+  const auto check = run_daemon({"--config", config.string(), "--check"}, dir.path());
+  EXPECT_EQ(check.exit_code, 2) << check.output;
+  EXPECT_NE(check.output.find(why), std::string::npos) << check.output;
+  const auto run = run_daemon({"--config", config.string()}, dir.path());
+  EXPECT_EQ(run.exit_code, 1) << run.output;
+  EXPECT_NE(run.output.find(why), std::string::npos) << run.output;
+  EXPECT_EQ(run.output.find("s3cret"), std::string::npos) << run.output;
+
+  std::filesystem::permissions(secret, std::filesystem::perms::owner_read | std::filesystem::perms::owner_write);
+  const auto fixed = run_daemon({"--config", config.string(), "--check"}, dir.path());
+  EXPECT_EQ(fixed.exit_code, 0) << fixed.output;
+}
+
 TEST(DaemonCommandLine, UsageErrorsExitTwoAndHelpShowsTheCaution) {
   temp_dir dir("dewmargind-cli");
   EXPECT_EQ(run_daemon({}, dir.path()).exit_code, 2);

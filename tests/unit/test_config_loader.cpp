@@ -3,11 +3,14 @@
 #include <algorithm>
 #include <filesystem>
 #include <fstream>
+#include <random>
 #include <regex>
 #include <string>
 #include <vector>
 
 #include "dewmargin/config_loader.h"
+#include "dewmargin/message_json.h"
+#include "dewmargin/safe_text.h"
 
 namespace dewmargin {
 namespace {
@@ -205,7 +208,9 @@ TEST(ConfigLoader, JsonSensorFeedsSeveralInputsFromOneTopicByField) {
   EXPECT_EQ(z.condensation_switch->active, (std::vector<std::string>{"true", "1", "wet"}));
   EXPECT_EQ(z.condensation_switch->unit, input_unit::none);
   ASSERT_TRUE(z.window_contact.has_value());
-  EXPECT_EQ(z.window_contact->active, (std::vector<std::string>{"open"}));
+  EXPECT_EQ(z.window_contact->active, (std::vector<std::string>{"open", "tilted"}));
+  EXPECT_EQ(z.window_contact->inactive, (std::vector<std::string>{"shut", "false", "0"}));
+  EXPECT_TRUE(z.condensation_switch->inactive.empty()) << "none written: the decoder's defaults apply";
   ASSERT_TRUE(z.valve.has_value());
   EXPECT_EQ(z.valve->topic, "bldg/room-1/valve/set");
   EXPECT_EQ(z.valve->open_payload, "100");
@@ -407,6 +412,20 @@ const text_case k_rule_cases[] = {
      "zone 'z1' window_contact: missing required key 'active'"},
     {"active_not_a_list", k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: open}\n", 11, 44,
      "'active' must be a non-empty list of payloads"},
+    {"inactive_not_a_list",
+     k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: [open], inactive: shut}\n", 11, 62,
+     "'inactive' must be a non-empty list of payloads"},
+    {"inactive_empty_word",
+     k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: [open], inactive: ['']}\n", 11, 63,
+     "an 'inactive' payload must not be empty"},
+    {"word_both_active_and_inactive",
+     k_head + k_loop + k_zone_block +
+         "    condensation_switch: {topic: b/w, active: [wet, 1], inactive: [dry, '1.0']}\n",
+     11, 73, "zone 'z1' condensation_switch: payload '1.0' is listed as both active and inactive"},
+    {"inactive_on_a_sensor",
+     k_head + k_loop +
+         "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t, inactive: [x]}, humidity: {topic: b/h}}\n",
+     7, 47, "unknown key 'inactive' in zone 'z1' air_temp"},
     {"valve_same_payloads", k_head + k_loop + k_zone_block + "    valve: {topic: b/v, open: x, closed: x}\n", 11, 42,
      "zone 'z1' valve: 'open' and 'closed' payloads must differ"},
     {"zone_id_with_slash",
@@ -455,7 +474,54 @@ const text_case k_rule_cases[] = {
     {"second_document", k_head + k_loop + k_zone + "---\nsite: other\n", 9, 1, "only one YAML document is expected"},
     {"top_level_list", "- site: s\n", 1, 1, "the top level must be a map of sections"},
     {"empty_text", "", 1, 1, "the file holds no config"},
+    // yaml-cpp's LoadAll() never returned on these (found by fuzzing): `check` hung, and so did a reload.
+    {"lone_comma", ",\n", 1, 1, "the file holds no config"},
+    {"anchor_and_comma", "&Y,", 1, 1, "the file holds no config"},
+    {"config_then_comma", k_head + k_loop + k_zone + ",\n", 8, 1, "YAML syntax error"},
     {"tab_indentation", k_head + "loops:\n\t- id: la\n", 5, 2, "YAML syntax error"},
+    // Text that is not UTF-8, or control characters: located at the byte, before any YAML.
+    {"site_latin1", "site: caf\xE9\n" + k_head.substr(8) + k_loop + k_zone, 1, 10,
+     "byte 0xE9 is not UTF-8 text; a config file must be saved as UTF-8"},
+    {"zone_id_invalid_byte",
+     k_head + k_loop + "zones:\n  - {id: z\x80, loop: la, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n", 7, 11,
+     "byte 0x80 is not UTF-8 text"},
+    {"topic_cut_character",
+     k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: b/t\xC3}, humidity: {topic: b/h}}\n", 7, 45,
+     "byte 0xC3 is not UTF-8 text"},
+    {"active_word_overlong",
+     k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: [\xC0\xAFopen]}\n", 11, 45,
+     "byte 0xC0 is not UTF-8 text"},
+    {"valve_payload_surrogate", k_head + k_loop + k_zone_block + "    valve: {topic: b/v, open: \xED\xA0\x80}\n", 11,
+     31, "byte 0xED is not UTF-8 text"},
+    {"raw_control_character",
+     "site: a\x01"
+     "b\n" +
+         k_head.substr(8) + k_loop + k_zone,
+     1, 8, "control character U+0001 is not allowed in a config file"},
+    {"raw_escape_character", k_head + "publish: {prefix: dm\x1b[2J}\n" + k_loop + k_zone, 4, 21,
+     "control character U+001B is not allowed in a config file"},
+    {"raw_nul",
+     k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: \"b/t" + std::string(1, '\0') +
+         "\"}, humidity: {topic: b/h}}\n",
+     7, 46, "control character U+0000 is not allowed in a config file"},
+    {"raw_c1_control",
+     "site: a\xC2\x85"
+     "b\n" +
+         k_head.substr(8) + k_loop + k_zone,
+     1, 8, "control character U+0085 is not allowed in a config file"},
+    {"escaped_nul_in_site", "site: \"a\\0b\"\n" + k_head.substr(8) + k_loop + k_zone, 1, 7,
+     "'site' must not hold a control character (U+0000 at byte 2)"},
+    {"escaped_nul_in_topic",
+     k_head + k_loop + "zones:\n  - {id: z1, loop: la, air_temp: {topic: \"b/t\\0\"}, humidity: {topic: b/h}}\n", 7, 42,
+     "'topic' must not hold a control character (U+0000 at byte 4)"},
+    {"escaped_escape_in_prefix", k_head + "publish: {prefix: \"dm\\e[2J\"}\n" + k_loop + k_zone, 4, 19,
+     "'prefix' must not hold a control character (U+001B at byte 3)"},
+    {"escaped_newline_in_zone_id",
+     k_head + k_loop + "zones:\n  - {id: \"z\\n1\", loop: la, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n", 7, 10,
+     "'id' must not hold a control character (U+000A at byte 2)"},
+    {"escaped_tab_in_active_word",
+     k_head + k_loop + k_zone_block + "    window_contact: {topic: b/win, active: [\"op\\ten\"]}\n", 11, 45,
+     "an 'active' payload must not hold a control character (U+0009 at byte 3)"},
 };
 
 std::string name_of_case(const ::testing::TestParamInfo<text_case>& case_info) { return case_info.param.name; }
@@ -466,7 +532,8 @@ TEST(ConfigLoader, ClockDefaultsToWallAndReadsEventTime) {
   const auto wall = load_config_text(k_head + k_loop + k_zone, "t.yaml");
   ASSERT_TRUE(wall.ok()) << all_errors(wall);
   EXPECT_EQ(wall.config->clock.source, clock_source::wall);
-  const auto events = load_config_text(k_head + "clock: {source: readings, field: /time}\n" + k_loop + k_zone, "t.yaml");
+  const auto events =
+      load_config_text(k_head + "clock: {source: readings, field: /time}\n" + k_loop + k_zone, "t.yaml");
   ASSERT_TRUE(events.ok()) << all_errors(events);
   EXPECT_EQ(events.config->clock.source, clock_source::readings);
   EXPECT_EQ(events.config->clock.field, "/time");
@@ -527,9 +594,71 @@ TEST(ConfigLoader, UnreadableFileGivesOneUnlocatedError) {
   EXPECT_EQ(dir.errors[0].to_string(), k_config_data.string() + ": cannot read: Is a directory");
 }
 
+// A config file full of random bytes (SIGHUP with a broken file used to stop the service:
+// junk was quoted raw into the reload event). Every error is located, printable UTF-8 and
+// one line; nothing throws.
+TEST(ConfigLoader, RandomBytesGiveLocatedPrintableErrors) {
+  std::mt19937 random(20260714);  // fixed seed: the same bytes every run
+  for (int round = 0; round < 200; ++round) {
+    std::string text(static_cast<std::size_t>(random() % 4096), '\0');
+    for (char& c : text) c = static_cast<char>(random() & 0xFF);
+    if (round % 2 == 1) {
+      for (char& c : text) c = static_cast<char>(0x20 + (static_cast<unsigned char>(c) % 0x5F));  // ASCII junk
+    }
+    config_load_result r;
+    ASSERT_NO_THROW(r = load_config_text(text, "junk.yaml")) << "round " << round;
+    EXPECT_FALSE(r.ok()) << "round " << round;
+    ASSERT_FALSE(r.errors.empty()) << "round " << round;
+    EXPECT_LE(r.errors.size(), 11u) << "round " << round << all_errors(r);
+    for (const auto& e : r.errors) {
+      const std::string line = e.to_string();
+      EXPECT_TRUE(is_valid_utf8(line)) << "round " << round << ": " << line;
+      EXPECT_EQ(first_control_char(line), std::string::npos) << "round " << round << ": " << line;
+      EXPECT_LE(line.size(), 450u) << "round " << round;
+      EXPECT_GT(e.line, 0) << "round " << round << ": " << line;
+    }
+    // What the service does with the first error on SIGHUP.
+    event_json event("site", from_unix_ms(0), subject_type::site, "", "service");
+    event.text("reason", "reload rejected; first: " + r.errors.front().to_string());
+    EXPECT_NO_THROW((void)event.dump()) << "round " << round;
+  }
+}
+
+TEST(ConfigLoader, ReportsAtMostTenLinesOfBytesThatAreNotText) {
+  std::string text;
+  for (int i = 0; i < 25; ++i) text += "site: \xFF\n";
+  const auto r = load_config_text(text, "t.yaml");
+  ASSERT_EQ(r.errors.size(), 11u) << all_errors(r);
+  EXPECT_EQ(r.errors[9].to_string(), "t.yaml:10:7: byte 0xFF is not UTF-8 text; a config file must be saved as UTF-8");
+  EXPECT_EQ(r.errors[10].to_string(),
+            "t.yaml:11:7: 15 more lines with bytes that are not UTF-8 text or with control characters");
+}
+
+TEST(ConfigLoader, AcceptsAByteOrderMarkAndCharactersBeyondAscii) {
+  const auto r = load_config_text(
+      "\xEF\xBB\xBF"
+      "site: Caf\xC3\xA9 \xE2\x82\xAC \xF0\x9F\x92\xA7\n" +
+          k_head.substr(8) + k_loop + k_zone,
+      "t.yaml");
+  ASSERT_TRUE(r.ok()) << all_errors(r);
+  EXPECT_EQ(r.config->site, "Caf\xC3\xA9 \xE2\x82\xAC \xF0\x9F\x92\xA7");
+}
+
+TEST(ConfigLoader, QuotesLongValuesAsShortPrintableExcerpts) {
+  const std::string long_value(5000, 'x');
+  const auto r = load_config_text(k_head + "defaults: {confirm_s: " + long_value + "}\n" + k_loop + k_zone, "t.yaml");
+  ASSERT_EQ(r.errors.size(), 1u) << all_errors(r);
+  EXPECT_EQ(r.errors[0].message, "'confirm_s' must be a number, got '" + std::string(60, 'x') + "...'");
+  const auto key = load_config_text(k_head + "\"bad\\x7fkey\": 1\n" + k_loop + k_zone, "t.yaml");
+  ASSERT_EQ(key.errors.size(), 1u) << all_errors(key);
+  EXPECT_NE(key.errors[0].message.find("unknown key 'bad\\x7fkey' at the top level"), std::string::npos)
+      << key.errors[0].message;
+}
+
 TEST(ConfigDiagnostic, FormatsWithAndWithoutPlace) {
   EXPECT_EQ((config_diagnostic{"a.yaml", 3, 7, "bad"}).to_string(), "a.yaml:3:7: bad");
   EXPECT_EQ((config_diagnostic{"a.yaml", 0, 0, "cannot read: x"}).to_string(), "a.yaml: cannot read: x");
+  EXPECT_EQ((config_diagnostic{"a\x80\n.yaml", 1, 2, "bad"}).to_string(), "a\xEF\xBF\xBD\\n.yaml:1:2: bad");
 }
 
 }  // namespace

@@ -78,6 +78,37 @@ TEST(DecodeNumber, RejectsBarePayloadsThatAreNotOneFiniteNumber) {
   for (const auto& c : cases) expect_rejected(decode_number(c.payload, bare(), input_kind::air_temp), c);
 }
 
+// A payload is outside text: its excerpt in an error message is valid UTF-8, printable,
+// and cut between characters (a cut inside one used to stop the service when the message
+// reached a JSON event).
+TEST(DecodeNumber, QuotesBadPayloadsAsPrintableUtf8) {
+  const std::string fffd = "\xEF\xBF\xBD";
+  const std::vector<reject_case> cases = {
+      {"invalid byte", "\x80", error_code::parse_error, "payload '" + fffd + "' is not a number"},
+      {"invalid byte after digits", "21.5\xFF", error_code::parse_error, "payload '21.5" + fffd + "' is not a number"},
+      {"two-byte character across the limit", std::string(39, '1') + "\xC2\xB0" + "C", error_code::parse_error,
+       "payload '" + std::string(39, '1') + "...' is not a number"},
+      {"three-byte character across the limit", std::string(38, '2') + "\xE2\x82\xAC", error_code::parse_error,
+       "payload '" + std::string(38, '2') + "...' is not a number"},
+      {"character that fits", std::string(38, '3') + "\xC2\xB0", error_code::parse_error,
+       "payload '" + std::string(38, '3') + "\xC2\xB0' is not a number"},
+      {"NUL inside",
+       std::string("21\0"
+                   "5",
+                   4),
+       error_code::parse_error, "payload '21\\x005' is not a number"},
+      {"terminal escape", "\x1b[2J21", error_code::parse_error, "payload '\\x1b[2J21' is not a number"},
+  };
+  for (const auto& c : cases) expect_rejected(decode_number(c.payload, bare(), input_kind::air_temp), c);
+  const auto j =
+      decode_number(R"({"t": "x)" + std::string(45, 'y') + "\xC2\xB0\"}", json_at("/t"), input_kind::air_temp);
+  ASSERT_FALSE(j.ok());
+  EXPECT_EQ(j.err().message, "field /t: payload 'x" + std::string(39, 'y') + "...' is not a number");
+  const auto invalid_json = decode_number("{\"t\": \"\x80\"}", json_at("/t"), input_kind::air_temp);
+  ASSERT_FALSE(invalid_json.ok());
+  EXPECT_EQ(invalid_json.err().message, "payload is not valid JSON");
+}
+
 struct field_case {
   const char* field;
   const char* payload;
@@ -176,8 +207,8 @@ struct switch_case {
 TEST(DecodeSwitch, MatchesActiveWordsIgnoringCaseAndBlanks) {
   const input_config cfg = switch_of({"1", "true", "wet"});
   const std::vector<switch_case> cases = {
-      {"1", true},  {"true", true},   {"TRUE", true}, {"Wet", true},     {"  wet\r\n", true},
-      {"0", false}, {"false", false}, {"dry", false}, {"wetter", false}, {"1.0", true},  // the same number as "1"
+      {"1", true},  {"true", true},   {"TRUE", true}, {"Wet", true}, {"  wet\r\n", true},
+      {"0", false}, {"false", false}, {"dry", false}, {"1.0", true},  // the same number as "1"
   };
   for (const auto& c : cases) {
     const auto v = decode_switch(c.payload, cfg);
@@ -200,6 +231,71 @@ TEST(DecodeSwitch, ReadsJsonStringBooleanAndNumberFields) {
     const auto v = decode_switch(c.payload, cfg);
     ASSERT_TRUE(v.ok()) << c.payload << ": " << v.err().message;
     EXPECT_EQ(v.value(), c.expected) << c.payload;
+  }
+}
+
+TEST(DecodeSwitch, ReadsTheDefaultInactiveWordsAndNumbersByValue) {
+  const input_config cfg = switch_of({"wet"});
+  for (const char* word : {"0", "0.0", " FALSE ", "off", "No", "dry", "closed", "normal"}) {
+    const auto v = decode_switch(word, cfg);
+    ASSERT_TRUE(v.ok()) << "'" << word << "': " << v.err().message;
+    EXPECT_FALSE(v.value()) << "'" << word << "'";
+  }
+  EXPECT_EQ(default_inactive_payloads(),
+            (std::vector<std::string>{"0", "false", "off", "no", "dry", "closed", "normal"}));
+}
+
+TEST(DecodeSwitch, ActiveWinsOverADefaultInactiveWord) {
+  // A normally-closed contact that reports "closed" when it trips.
+  const input_config cfg = switch_of({"closed"});
+  EXPECT_EQ(inactive_payloads(cfg), (std::vector<std::string>{"0", "false", "off", "no", "dry", "normal"}));
+  const auto v = decode_switch("CLOSED", cfg);
+  ASSERT_TRUE(v.ok()) << v.err().message;
+  EXPECT_TRUE(v.value());
+  // Numbers compare by value here too: active "1.0" takes "1" out of nothing, "0" out of the defaults.
+  EXPECT_EQ(inactive_payloads(switch_of({"0.0"})).front(), "false");
+}
+
+TEST(DecodeSwitch, OwnInactiveListReplacesTheDefaults) {
+  input_config cfg = switch_of({"alarm"});
+  cfg.inactive = {"quiet", "2"};
+  EXPECT_EQ(inactive_payloads(cfg), cfg.inactive);
+  const std::vector<switch_case> cases = {{"alarm", true}, {"Quiet", false}, {"2.0", false}};
+  for (const auto& c : cases) {
+    const auto v = decode_switch(c.payload, cfg);
+    ASSERT_TRUE(v.ok()) << "'" << c.payload << "': " << v.err().message;
+    EXPECT_EQ(v.value(), c.expected) << "'" << c.payload << "'";
+  }
+  const auto dry = decode_switch("dry", cfg);
+  ASSERT_FALSE(dry.ok()) << "an own list drops the defaults";
+  EXPECT_EQ(dry.err().message, "payload 'dry' is neither active (alarm) nor inactive (quiet, 2)");
+}
+
+// Junk on a moisture switch used to read as "dry": the zone turned safe, its valve could
+// open. It is a bad reading now (the engine keeps the last good state and reports it).
+TEST(DecodeSwitch, RejectsAPayloadThatIsNeitherActiveNorInactive) {
+  struct junk_case {
+    const char* name;
+    std::string payload;
+    std::string field;
+    std::string message;
+  };
+  const std::string lists = " is neither active (1, true, wet) nor inactive (0, false, off, no, dry, closed, normal)";
+  const std::vector<junk_case> cases = {
+      {"word", "maybe", "", "payload 'maybe'" + lists},
+      {"longer word", "wetter", "", "payload 'wetter'" + lists},
+      {"brackets", "[[[[", "", "payload '[[[['" + lists},
+      {"other number", "2", "", "payload '2'" + lists},
+      {"invalid byte", "\x80", "", "payload '\xEF\xBF\xBD'" + lists},
+      {"control characters", "wet\x1b[2J", "", "payload 'wet\\x1b[2J'" + lists},
+      {"JSON number", R"({"s": 7})", "/s", "payload '7'" + lists},
+      {"JSON string", R"({"s": "unsure"})", "/s", "payload 'unsure'" + lists},
+  };
+  for (const auto& c : cases) {
+    const auto v = decode_switch(c.payload, switch_of({"1", "true", "wet"}, c.field));
+    ASSERT_FALSE(v.ok()) << c.name << " read as " << v.value();
+    EXPECT_EQ(v.err().code, error_code::parse_error) << c.name;
+    EXPECT_EQ(v.err().message, c.message) << c.name;
   }
 }
 

@@ -202,6 +202,36 @@ TEST(EventJson, NamesNoSubjectForSiteEvents) {
   EXPECT_EQ(keys_of(j), (std::set<std::string>{"ts", "site", "kind", "from", "to"}));
 }
 
+// Outside text (a topic, a payload excerpt, a config value) may hold any bytes: building
+// and writing the document must not throw, and what goes out is valid UTF-8.
+TEST(EventJson, WritesInvalidUtf8AsReplacementCharacters) {
+  event_json e("site-\xFF", k_ts, subject_type::zone, "z\xC3", "input");
+  e.text("topic", "b/\x80/temp").text("reason", "payload '\xE2\x82' is not a number").text_or_null("by", "\xC0");
+  std::string text;
+  ASSERT_NO_THROW(text = e.dump());
+  const auto j = nlohmann::json::parse(text);
+  EXPECT_EQ(j["site"], "site-\xEF\xBF\xBD");
+  EXPECT_EQ(j["zone"], "z\xEF\xBF\xBD");
+  EXPECT_EQ(j["topic"], "b/\xEF\xBF\xBD/temp");
+  EXPECT_EQ(j["reason"], "payload '\xEF\xBF\xBD' is not a number");
+  EXPECT_EQ(j["by"], "\xEF\xBF\xBD");
+}
+
+TEST(ZoneStateJson, WritesInvalidUtf8InNamesAsReplacementCharacters) {
+  zone_state_view z = full_zone();
+  z.site = "\x80";
+  z.zone = "a\xF0\x9F";
+  std::string zone_text;
+  ASSERT_NO_THROW(zone_text = format_zone_state(z));
+  EXPECT_EQ(nlohmann::json::parse(zone_text)["zone"], "a\xEF\xBF\xBD");
+  loop_state_view l = full_loop();
+  l.loop = "\xFE";
+  l.reason = "r\xC2";
+  std::string loop_text;
+  ASSERT_NO_THROW(loop_text = format_loop_state(l));
+  EXPECT_EQ(nlohmann::json::parse(loop_text)["reason"], "r\xEF\xBF\xBD");
+}
+
 struct bare_case {
   double value;
   const char* text;

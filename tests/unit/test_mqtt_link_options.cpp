@@ -19,6 +19,7 @@ class MqttLinkCreate : public ::testing::Test {
     dir_ = fs::temp_directory_path() / ("dewmargin-link-options-" + std::to_string(getpid()));
     fs::create_directories(dir_);
     std::ofstream(dir_ / "password") << "pw\n";
+    fs::permissions(dir_ / "password", fs::perms::owner_read | fs::perms::owner_write);  // the owner's alone
     std::ofstream(dir_ / "ca.crt") << "not really a certificate\n";
   }
   void TearDown() override { fs::remove_all(dir_); }

@@ -7,6 +7,9 @@
 
 #include "commands.h"
 #include "dewmargin/config_loader.h"
+#include "dewmargin/input_decoder.h"
+#include "dewmargin/named_files_check.h"
+#include "dewmargin/safe_text.h"
 
 namespace dewmargin::cli {
 namespace {
@@ -43,14 +46,20 @@ const char* unit_label(input_unit u) {
   return "";
 }
 
+std::string quoted_words(const std::vector<std::string>& words) {
+  std::string s;
+  for (std::size_t i = 0; i < words.size(); ++i) s += (i == 0 ? " \"" : ", \"") + words[i] + "\"";
+  return s;
+}
+
 // topic[field] unit, then what is special about this input.
 std::string describe_input(const input_config& in) {
   std::string s = in.topic;
   if (!in.field.empty()) s += "[" + in.field + "]";
   if (in.unit != input_unit::none) s += std::string(" ") + unit_label(in.unit);
   if (!in.active.empty()) {
-    s += " active:";
-    for (std::size_t i = 0; i < in.active.size(); ++i) s += (i == 0 ? " \"" : ", \"") + in.active[i] + "\"";
+    s += " active:" + quoted_words(in.active);
+    s += std::string(in.inactive.empty() ? " inactive (default):" : " inactive:") + quoted_words(inactive_payloads(in));
   }
   if (in.stale_after_s)
     s += *in.stale_after_s == 0.0 ? " (never stale)" : " (stale after " + num(*in.stale_after_s) + " s)";
@@ -177,6 +186,11 @@ int run_check(const std::string& file, std::ostream& out, std::ostream& err) {
   const auto loaded = load_config_file(file);
   if (!loaded.ok()) {
     for (const auto& d : loaded.errors) err << d.to_string() << '\n';
+    return k_exit_usage;
+  }
+  const auto file_problems = check_named_files(*loaded.config);
+  if (!file_problems.empty()) {
+    for (const auto& p : file_problems) err << printable_text(file) << ": " << p << '\n';
     return k_exit_usage;
   }
   print_summary(file, *loaded.config, out);

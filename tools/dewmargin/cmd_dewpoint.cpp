@@ -7,6 +7,7 @@
 #include <ostream>
 
 #include "commands.h"
+#include "dewmargin/json_dump.h"
 #include "dewmargin/psychro.h"
 #include "dewmargin/units.h"
 
@@ -66,7 +67,7 @@ int run_dewpoint(const dewpoint_options& o, std::ostream& out, std::ostream& err
     j["humidity_ratio_g_per_kg"] = units::round_to_hundredths(w_g_per_kg);
     j["pressure_kpa"] = psychro::k_standard_pressure_kpa;
     j["formula"] = k.name;
-    out << j.dump() << '\n';
+    out << json_dump(j) << '\n';
     return k_exit_ok;
   }
 

@@ -15,6 +15,7 @@
 #include "dewmargin/event_kind.h"
 #include "dewmargin/history_format.h"
 #include "dewmargin/history_reader.h"
+#include "dewmargin/json_dump.h"
 #include "dewmargin/timestamp.h"
 
 namespace dewmargin::cli {
@@ -46,7 +47,7 @@ std::string json_text(const stored_event& e, const event_columns& c) {
   j[c.subject_type] = c.subject;
   j["kind"] = c.kind;
   j["invalid_stored_json"] = e.record.json;
-  return j.dump(-1, ' ', false, nlohmann::ordered_json::error_handler_t::replace);  // raw text may not be UTF-8
+  return json_dump(j);  // raw text may not be UTF-8
 }
 
 }  // namespace

@@ -64,8 +64,10 @@ int main(int argc, char** argv) {
   replay->add_option("--tail-s", rp.tail_s, "Simulated seconds to keep ticking after the last reading")
       ->check(CLI::Range(0.0, 86400.0 * 31));
   replay->footer(std::string("\nExample:\n  dewmargin replay --config config/example.yaml --readings day.csv --states\n\n"
-                             "ts is ISO 8601 or seconds from --start; payload is quoted per RFC 4180 when it\n"
-                             "holds commas or quotes. Lines starting with # are comments.\n\n") +
+                             "The first line must be the header ts,topic,payload (a UTF-8 byte-order mark is\n"
+                             "skipped). ts is ISO 8601 or seconds from --start, from 1970 to 9999; payload is\n"
+                             "quoted per RFC 4180 when it holds commas or quotes. Lines starting with # are\n"
+                             "comments.\n\n") +
                  k_caution);
   replay->callback([&] { exit_code = run_replay(rp, std::cout, std::cerr); });
 

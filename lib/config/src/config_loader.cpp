@@ -1,12 +1,18 @@
 // Entry points: read the file, parse the YAML, hand the document to the section readers.
 #include "dewmargin/config_loader.h"
 
+#include <yaml-cpp/eventhandler.h>
+
 #include <cerrno>
 #include <cstdio>
 #include <cstring>
 #include <memory>
+#include <optional>
+#include <sstream>
+#include <vector>
 
 #include "config_reading.h"
+#include "text_check.h"
 
 namespace dewmargin {
 namespace {
@@ -19,6 +25,45 @@ source_mark mark_or_start(const YAML::Mark& m) {
   return {m.line + 1, m.column + 1};
 }
 
+// Notes where each document's top node stands, and nothing else.
+class document_starts : public YAML::EventHandler {
+ public:
+  std::vector<YAML::Mark> marks;
+  void OnDocumentStart(const YAML::Mark&) override { top_seen_ = false; }
+  void OnDocumentEnd() override {}
+  void OnNull(const YAML::Mark& mark, YAML::anchor_t) override { node(mark); }
+  void OnAlias(const YAML::Mark& mark, YAML::anchor_t) override { node(mark); }
+  void OnScalar(const YAML::Mark& mark, const std::string&, YAML::anchor_t, const std::string&) override { node(mark); }
+  void OnSequenceStart(const YAML::Mark& mark, const std::string&, YAML::anchor_t, YAML::EmitterStyle::value) override {
+    node(mark);
+  }
+  void OnSequenceEnd() override {}
+  void OnMapStart(const YAML::Mark& mark, const std::string&, YAML::anchor_t, YAML::EmitterStyle::value) override {
+    node(mark);
+  }
+  void OnMapEnd() override {}
+
+ private:
+  void node(const YAML::Mark& mark) {
+    if (!top_seen_) marks.push_back(mark);
+    top_seen_ = true;
+  }
+  bool top_seen_ = false;
+};
+
+// Where a second document starts, if there is one. Not YAML::LoadAll(): in yaml-cpp 0.7.0
+// it never returns on some junk (a lone ","), as its parser reports one empty document
+// after another; so only two documents are asked for.
+std::optional<YAML::Mark> second_document(const std::string& text) {
+  std::istringstream in(text);
+  YAML::Parser parser(in);
+  document_starts starts;
+  for (int i = 0; i < 2 && parser.HandleNextDocument(starts); ++i) {
+  }
+  if (starts.marks.size() < 2) return std::nullopt;
+  return starts.marks[1];
+}
+
 }  // namespace
 
 config_load_result load_config_text(std::string_view yaml_text, const std::string& file_label) {
@@ -26,16 +71,22 @@ config_load_result load_config_text(std::string_view yaml_text, const std::strin
   site_config config;
   config_detail::config_index index;
   try {
-    const std::vector<YAML::Node> documents = YAML::LoadAll(std::string(yaml_text));
-    if (documents.empty() || documents.front().IsNull()) {
+    if (!config_detail::check_config_text(yaml_text, diag)) {
+      // Not text: the YAML reader would only add noise about bytes already reported.
+      config_load_result result;
+      result.errors = diag.take_in_file_order();
+      return result;
+    }
+    const std::string text(yaml_text);
+    const YAML::Node document = YAML::Load(text);  // the first document only
+    if (document.IsNull()) {
       diag.error({1, 1}, "the file holds no config (expected site, broker, storage, loops and zones)");
     } else {
-      if (documents.size() > 1) {
-        diag.error(mark_or_start(documents[1].Mark()),
-                   "only one YAML document is expected; this file has " + std::to_string(documents.size()));
+      if (const auto second = second_document(text)) {
+        diag.error(mark_or_start(*second), "only one YAML document is expected; a second one starts here");
       }
       config_detail::reading r{config, index, diag};
-      config_detail::read_site(documents.front(), r);
+      config_detail::read_site(document, r);
     }
   } catch (const YAML::ParserException& e) {
     diag.error(mark_or_start(e.mark), "YAML syntax error: " + e.msg);

@@ -3,17 +3,25 @@
 #include <algorithm>
 #include <tuple>
 
+#include "dewmargin/safe_text.h"
+
 namespace dewmargin {
 
+// The file name is outside text too: written printable, like every message.
 std::string config_diagnostic::to_string() const {
-  if (line == 0) return file + ": " + message;
-  return file + ":" + std::to_string(line) + ":" + std::to_string(column) + ": " + message;
+  const std::string name = printable_text(file);
+  if (line == 0) return name + ": " + message;
+  return name + ":" + std::to_string(line) + ":" + std::to_string(column) + ": " + message;
 }
 
 namespace config_detail {
 
+// Messages quote what the file holds (keys, values): made printable UTF-8 and kept to
+// one line of reasonable length here, so that no byte of a file reaches a log line or
+// a JSON event raw.
 void diagnostics::error(source_mark at, std::string message) {
-  errors_.push_back({file_, at.line, at.column, std::move(message)});
+  constexpr std::size_t k_max_message_bytes = 400;
+  errors_.push_back({file_, at.line, at.column, text_excerpt(message, k_max_message_bytes)});
 }
 
 std::vector<config_diagnostic> diagnostics::take_in_file_order() {

@@ -1,6 +1,7 @@
 #pragma once
 // Collects the located errors of one config file. Readers keep going after an error,
 // so one pass finds every mistake; the list is handed out in file order, once each.
+// Every message is made printable UTF-8 here (see safe_text.h).
 #include <string>
 #include <vector>
 

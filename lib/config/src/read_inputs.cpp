@@ -2,6 +2,7 @@
 #include <algorithm>
 
 #include "config_reading.h"
+#include "dewmargin/input_decoder.h"
 
 namespace dewmargin::config_detail {
 namespace {
@@ -52,27 +53,46 @@ std::string unit_list(const std::vector<unit_choice>& choices) {
   return out;
 }
 
-
-bool read_active_list(const map_reader& m, input_config& in) {
-  if (!m.require("active")) return false;
-  const YAML::Node& node = *m.value("active");
-  const source_mark at = m.value_mark("active");
+// `active:` (required) or `inactive:` (optional; the decoder's defaults otherwise): a
+// non-empty list of payload words.
+bool read_word_list(const map_reader& m, const char* key, const char* example, std::vector<std::string>& words) {
+  const std::string name = key;
+  if (!m.has(key)) return name != "active" || m.require(key);
+  const YAML::Node& node = *m.value(key);
+  const source_mark at = m.value_mark(key);
   if (!node.IsSequence() || node.size() == 0) {
-    m.diag().error(at, "'active' must be a non-empty list of payloads, e.g. [\"open\"], got " + describe(node));
+    m.diag().error(
+        at, "'" + name + "' must be a non-empty list of payloads, e.g. [" + example + "], got " + describe(node));
     return false;
   }
   bool ok = true;
   for (const auto& item : node) {
     const source_mark item_at = mark_of(item);
     // YAML reads 1 and true as numbers and booleans; a payload is text, so keep the text.
-    auto text = scalar_text(item, "an 'active' payload", item_at, m.diag());
+    auto text = scalar_text(item, "an '" + name + "' payload", item_at, m.diag());
     if (text && text->empty()) {
-      m.diag().error(item_at, "an 'active' payload must not be empty");
+      m.diag().error(item_at, "an '" + name + "' payload must not be empty");
       text.reset();
     }
     if (text) {
-      in.active.push_back(std::move(*text));
+      words.push_back(std::move(*text));
     } else {
+      ok = false;
+    }
+  }
+  return ok;
+}
+
+// A word may not mean both: reported at the inactive one.
+bool check_words_disjoint(const map_reader& m, const input_config& in) {
+  if (in.inactive.empty()) return true;
+  const YAML::Node& node = *m.value("inactive");
+  bool ok = true;
+  std::size_t i = 0;
+  for (const auto& item : node) {
+    const std::string& word = in.inactive[i++];
+    if (matches_switch_word(word, in.active)) {
+      m.diag().error(mark_of(item), m.context() + ": payload '" + word + "' is listed as both active and inactive");
       ok = false;
     }
   }
@@ -133,7 +153,11 @@ std::optional<input_config> read_input(const YAML::Node& node, source_mark at, c
                                        const std::string& owner, input_kind kind, reading& r) {
   if (!expect_map(node, name, " like { topic: ... }", at, r.diag)) return std::nullopt;
   std::vector<std::string> keys{"topic", "field", "stale_after_s"};
-  keys.emplace_back(kind == input_kind::binary ? "active" : "unit");
+  if (kind == input_kind::binary) {
+    keys.insert(keys.end(), {"active", "inactive"});
+  } else {
+    keys.emplace_back("unit");
+  }
   const map_reader m(node, owner, keys, r.diag);
 
   input_config in;
@@ -174,7 +198,11 @@ std::optional<input_config> read_input(const YAML::Node& node, source_mark at, c
   } else if (m.has("stale_after_s")) {
     ok = false;
   }
-  if (kind == input_kind::binary && !read_active_list(m, in)) ok = false;
+  if (kind == input_kind::binary) {
+    const bool active_ok = read_word_list(m, "active", "\"open\"", in.active);
+    const bool inactive_ok = read_word_list(m, "inactive", "\"closed\"", in.inactive);
+    if (!active_ok || !inactive_ok || !check_words_disjoint(m, in)) ok = false;
+  }
 
   // Recorded only when topic and field are known, so the topic checks see no half input.
   if (!in.topic.empty() && field_ok) r.index.inputs.push_back({in.topic, in.field, owner, topic->at});

@@ -7,7 +7,9 @@
 #include <cstdio>
 #include <cstdlib>
 
+#include "dewmargin/safe_text.h"
 #include "nearest_word.h"
+#include "text_check.h"
 
 namespace dewmargin::config_detail {
 namespace {
@@ -67,7 +69,7 @@ std::string describe(const YAML::Node& node) {
     case YAML::NodeType::Sequence:
       return node.size() == 0 ? "an empty list" : "a list";
     case YAML::NodeType::Scalar:
-      return "'" + node.Scalar() + "'";
+      return "'" + text_excerpt(node.Scalar(), 60) + "'";
     case YAML::NodeType::Null:
     case YAML::NodeType::Undefined:
       break;
@@ -184,7 +186,7 @@ std::optional<located<double>> map_reader::number(std::string_view key, number_r
   }
   const auto parsed = parse_decimal(v.Scalar());
   if (!parsed) {
-    diag_.error(at, name + " must be a number, got '" + v.Scalar() + "'");
+    diag_.error(at, name + " must be a number, got '" + text_excerpt(v.Scalar(), 60) + "'");
     return std::nullopt;
   }
   if (rule == number_rule::non_negative && *parsed < 0.0) {
@@ -214,6 +216,10 @@ std::optional<std::string> scalar_text(const YAML::Node& node, std::string_view 
   }
   if (!node.IsScalar()) {
     diag.error(at, std::string(what) + " must be text, got " + describe(node));
+    return std::nullopt;
+  }
+  if (const std::string problem = text_value_problem(node.Scalar()); !problem.empty()) {
+    diag.error(at, std::string(what) + " " + problem);
     return std::nullopt;
   }
   return node.Scalar();

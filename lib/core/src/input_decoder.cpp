@@ -7,7 +7,9 @@
 #include <cstdlib>
 #include <nlohmann/json.hpp>
 
+#include "dewmargin/json_dump.h"
 #include "dewmargin/psychro.h"
+#include "dewmargin/safe_text.h"
 #include "dewmargin/units.h"
 
 namespace dewmargin {
@@ -19,11 +21,10 @@ std::string_view trim(std::string_view s) {
   return s;
 }
 
+// Payloads are outside text: quoted only as a short, printable, valid UTF-8 excerpt.
 std::string excerpt(std::string_view s) {
-  constexpr std::size_t k_max = 40;
-  std::string out(s.substr(0, k_max));
-  if (s.size() > k_max) out += "...";
-  return out;
+  constexpr std::size_t k_max_bytes = 40;
+  return text_excerpt(s, k_max_bytes);
 }
 
 result<double> parse_bare_number(std::string_view text) {
@@ -79,6 +80,12 @@ std::string lower(std::string_view s) {
   return out;
 }
 
+std::string word_list(const std::vector<std::string>& words) {
+  std::string out;
+  for (const auto& w : words) out += (out.empty() ? "" : ", ") + excerpt(w);
+  return out;
+}
+
 std::string format_range(const char* what, double v, const value_range& r, const char* unit) {
   char buf[160];
   std::snprintf(buf, sizeof buf, "%s %.2f %s is outside the plausible range %.1f to %.1f %s", what, v, unit, r.min,
@@ -87,6 +94,19 @@ std::string format_range(const char* what, double v, const value_range& r, const
 }
 
 }  // namespace
+
+bool matches_switch_word(std::string_view text, const std::vector<std::string>& words) {
+  const std::string needle = lower(trim(text));
+  const auto number = parse_bare_number(needle);
+  for (const auto& w : words) {
+    if (lower(trim(w)) == needle) return true;
+    if (number) {
+      const auto word_number = parse_bare_number(w);
+      if (word_number && word_number.value() == number.value()) return true;
+    }
+  }
+  return false;
+}
 
 const char* input_kind_name(input_kind k) {
   switch (k) {
@@ -138,23 +158,34 @@ result<bool> decode_switch(std::string_view payload, const input_config& cfg) {
     if (j.is_string()) {
       text = j.get<std::string>();
     } else if (j.is_boolean() || j.is_number()) {
-      text = j.dump();
+      text = json_dump(j);
     } else {
       return make_error(error_code::parse_error, "field " + cfg.field + " is not a string, number or boolean");
     }
   }
-  if (text.empty()) return make_error(error_code::parse_error, "empty payload");
-  const std::string needle = lower(trim(text));
-  // Numbers match by value, so that a JSON 1.0 (or a bare "1.0") counts as an active "1".
-  const auto number = parse_bare_number(needle);
-  for (const auto& a : cfg.active) {
-    if (lower(trim(a)) == needle) return true;
-    if (number) {
-      const auto active_number = parse_bare_number(a);
-      if (active_number && active_number.value() == number.value()) return true;
-    }
+  if (trim(text).empty()) return make_error(error_code::parse_error, "empty payload");
+  if (matches_switch_word(text, cfg.active)) return true;
+  const std::vector<std::string> inactive = inactive_payloads(cfg);
+  if (matches_switch_word(text, inactive)) return false;
+  return make_error(error_code::parse_error, "payload '" + excerpt(trim(text)) + "' is neither active (" +
+                                                 word_list(cfg.active) + ") nor inactive (" + word_list(inactive) +
+                                                 ")");
+}
+
+const std::vector<std::string>& default_inactive_payloads() {
+  // Common practice, no source: the words and numbers devices send for "dry", "closed"
+  // or "off". The simulator's "dry" and "closed" are among them.
+  static const std::vector<std::string> k_words{"0", "false", "off", "no", "dry", "closed", "normal"};
+  return k_words;
+}
+
+std::vector<std::string> inactive_payloads(const input_config& cfg) {
+  if (!cfg.inactive.empty()) return cfg.inactive;
+  std::vector<std::string> out;
+  for (const auto& w : default_inactive_payloads()) {
+    if (!matches_switch_word(w, cfg.active)) out.push_back(w);
   }
-  return false;
+  return out;
 }
 
 result<double> check_plausible(double v, input_kind kind, const plausibility_config& p) {

@@ -3,6 +3,7 @@
 #include <cstdio>
 #include <nlohmann/json.hpp>
 
+#include "dewmargin/json_dump.h"
 #include "dewmargin/units.h"
 
 namespace dewmargin {
@@ -70,7 +71,7 @@ event_json& event_json::alarm(const alarm_status& a) {
   impl_->j["alarm"] = alarm_object(a);
   return *this;
 }
-std::string event_json::dump() const { return impl_->j.dump(); }
+std::string event_json::dump() const { return json_dump(impl_->j); }
 
 std::string format_zone_state(const zone_state_view& v) {
   nlohmann::ordered_json j;
@@ -88,7 +89,7 @@ std::string format_zone_state(const zone_state_view& v) {
   j["valve"] = text_or_null(v.valve);
   j["alarm"] = alarm_object(v.alarm);
   j["minutes_to_condensation"] = rounded(v.minutes_to_condensation);
-  return j.dump();
+  return json_dump(j);
 }
 
 std::string format_loop_state(const loop_state_view& v) {
@@ -103,7 +104,7 @@ std::string format_loop_state(const loop_state_view& v) {
   j["reason"] = v.reason;
   j["limited"] = v.limited;
   j["cooling_kw"] = rounded(v.cooling_kw);
-  return j.dump();
+  return json_dump(j);
 }
 
 std::string format_bare_number(double v) {

@@ -2,6 +2,8 @@
 
 #include <nlohmann/json.hpp>
 
+#include "dewmargin/json_dump.h"
+
 namespace dewmargin {
 namespace {
 
@@ -11,13 +13,13 @@ using ordered_json = nlohmann::ordered_json;
 std::string value_text(const ordered_json& v) {
   if (v.is_null()) return {};
   if (v.is_string()) return v.get<std::string>();
-  return v.dump();
+  return json_dump(v);
 }
 
 // key=value for a terminal: a plain string stays bare; one with spaces, quotes, '=' or control
 // characters is JSON-quoted so the row stays on one line and can be read back.
 std::string detail_value_text(const ordered_json& v) {
-  if (!v.is_string()) return v.dump();
+  if (!v.is_string()) return json_dump(v);
   const auto& s = v.get_ref<const std::string&>();
   bool bare = !s.empty();
   for (const char c : s) {
@@ -26,7 +28,7 @@ std::string detail_value_text(const ordered_json& v) {
       break;
     }
   }
-  return bare ? s : v.dump();
+  return bare ? s : json_dump(v);
 }
 
 }  // namespace
@@ -44,7 +46,7 @@ event_columns event_columns_of(const stored_event& event) {
     c.json_valid = false;
     c.details_json = r.json;
     // Quoted and escaped, so that stray line breaks or bytes cannot break the terminal's row.
-    c.details_text = ordered_json(r.json).dump(-1, ' ', false, ordered_json::error_handler_t::replace);
+    c.details_text = json_dump(ordered_json(r.json));
     return c;
   }
   ordered_json details = ordered_json::object();
@@ -59,7 +61,7 @@ event_columns event_columns_of(const stored_event& event) {
     }
   }
   if (!details.empty()) {
-    c.details_json = details.dump();
+    c.details_json = json_dump(details);
     for (auto it = details.begin(); it != details.end(); ++it) {
       if (!c.details_text.empty()) c.details_text += ' ';
       c.details_text += it.key() + "=" + detail_value_text(it.value());

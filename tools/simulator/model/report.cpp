@@ -5,6 +5,7 @@
 #include <nlohmann/json.hpp>
 #include <sstream>
 
+#include "dewmargin/json_dump.h"
 #include "model/moist_air.h"
 #include "model/verdict.h"
 
@@ -232,7 +233,7 @@ std::string summary_json(const simulation& sim, const pace_report* pace) {
         {"broker_stalls", pace->broker_stalls},   {"service_wait_s", hundredths(pace->service_wait_s)},
         {"service_stalls", pace->service_stalls}, {"worst_service_lag_s", hundredths(pace->worst_service_lag_s)}};
   }
-  return j.dump();
+  return json_dump(j);
 }
 
 std::string compare_json(const simulation& baseline, const simulation& supervised, const pace_report* pace,

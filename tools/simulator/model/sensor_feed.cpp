@@ -6,6 +6,7 @@
 #include <set>
 #include <stdexcept>
 
+#include "dewmargin/json_dump.h"
 #include "dewmargin/units.h"
 #include "model/moist_air.h"
 
@@ -177,7 +178,7 @@ std::string sensor_feed::payload(const stream& s, double value, timestamp ts) co
   nlohmann::json j = nlohmann::json::object();
   j[nlohmann::json::json_pointer(s.input->field)] = v;
   if (clock_.source == clock_source::readings) j[nlohmann::json::json_pointer(clock_.field)] = format_iso8601_utc(ts);
-  return j.dump();
+  return json_dump(j);
 }
 
 std::string sensor_feed::payload(const stream& s, const std::string& word, timestamp ts) const {
@@ -185,7 +186,7 @@ std::string sensor_feed::payload(const stream& s, const std::string& word, times
   nlohmann::json j = nlohmann::json::object();
   j[nlohmann::json::json_pointer(s.input->field)] = word;
   if (clock_.source == clock_source::readings) j[nlohmann::json::json_pointer(clock_.field)] = format_iso8601_utc(ts);
-  return j.dump();
+  return json_dump(j);
 }
 
 bool sensor_feed::state_active(const stream& s, double t_s, const plant_model& plant, const scenario& sc) const {

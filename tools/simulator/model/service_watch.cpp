@@ -3,6 +3,7 @@
 #include <nlohmann/json.hpp>
 
 #include "dewmargin/event_kind.h"
+#include "dewmargin/json_dump.h"
 
 namespace dewmargin::sim {
 namespace {
@@ -169,7 +170,7 @@ void service_watch::operator_actions(double now_s, std::vector<outbound>& out) {
     cmd["zone"] = z.id;
     cmd["by"] = operator_name_;
     cmd["note"] = "acknowledged by the simulated operator";
-    out.push_back({prefix_ + "/cmd/ack", cmd.dump(), false, 1});
+    out.push_back({prefix_ + "/cmd/ack", json_dump(cmd), false, 1});
     z.ack_sent = true;
     ++tally_.acks_sent;
   }

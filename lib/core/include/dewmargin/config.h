@@ -26,6 +26,8 @@ struct input_config {
   std::string field;
   input_unit unit = input_unit::none;
   std::vector<std::string> active;            // switch/contact payloads meaning "active"
+  std::vector<std::string> inactive;          // ... meaning "inactive"; empty: the defaults
+                                              // (inactive_payloads() in input_decoder.h)
   std::optional<double> stale_after_s;        // overrides the zone's; 0 means never stale
 };
 

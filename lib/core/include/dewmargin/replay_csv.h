@@ -1,8 +1,10 @@
 #pragma once
 // Readings for `dewmargin replay`: CSV with columns ts,topic,payload (RFC 4180 quoting,
-// so JSON payloads with commas and quotes fit in one field). `ts` is ISO 8601 or seconds
-// from `start`. A header row "ts,topic,payload" and lines starting with '#' are skipped.
-// A malformed record is an error naming its line, never skipped.
+// so JSON payloads with commas and quotes fit in one field). The first record must be the
+// header "ts,topic,payload" (a UTF-8 byte-order mark before it is skipped); lines starting
+// with '#' and blank lines are not records. `ts` is ISO 8601 or seconds from `start`, and
+// must lie from 1970-01-01 to 9999-12-31. A topic is UTF-8 without NUL or wildcards; a
+// payload holds no NUL. A malformed record is an error naming its line, never skipped.
 #include <string>
 #include <string_view>
 #include <vector>

@@ -8,7 +8,8 @@
 
 namespace dewmargin {
 
-// Errors name the file and why it could not be used (missing, unreadable, empty).
+// Errors name the file and why it could not be used (missing, unreadable, empty, open
+// to group or others, owned by another user: see secret_file_rule.h).
 [[nodiscard]] result<std::string> read_secret_file(const std::filesystem::path& file);
 
 }  // namespace dewmargin

@@ -1,0 +1,20 @@
+#pragma once
+// Config reload (SIGHUP): zones, loops, thresholds and rules take effect at once; the
+// settings named here are read only at start (the broker connection, the history file,
+// the topics subscribed or published under, the clock) and need a restart.
+#include <string>
+#include <vector>
+
+#include "dewmargin/config.h"
+
+namespace dewmargin {
+
+// One entry per setting that differs between `old` and `fresh` and needs a restart, in
+// config order: "broker.uri", "broker.tls.ca_file", "storage.keep_events_days",
+// "input topic 'bldg/l2e/rh' (new)", ... Empty when the reload takes full effect.
+[[nodiscard]] std::vector<std::string> restart_needed(const site_config& old, const site_config& fresh);
+
+// Every topic the config reads (inputs of loops and zones), each once, in config order.
+[[nodiscard]] std::vector<std::string> input_topics(const site_config& config);
+
+}  // namespace dewmargin
