@@ -9,6 +9,9 @@
 
 #include "dewmargin/config_loader.h"
 #include "dewmargin/engine.h"
+#include "dewmargin/http_server.h"
+#include "dewmargin/live_snapshot.h"
+#include "dewmargin/secret_file.h"
 #include "dewmargin/mqtt_link.h"
 #include "dewmargin/store_writer.h"
 #include "dewmargin/version.h"
@@ -71,6 +74,7 @@ class service {
       return 1;
     }
     link_ = std::make_unique<mqtt_link>(std::move(link.value()));
+    if (!start_http(cfg)) return 1;
 
     open_store();
     restored_state restored;
@@ -142,12 +146,65 @@ class service {
     store_ = std::make_unique<store_writer>(std::move(opened.value()));
   }
 
+  // ---- live views (lib/http): the web server gets copies of the published states ----
+
+  bool start_http(const site_config& cfg) {
+    if (!cfg.http) return true;
+    http_server_options o;
+    o.host = cfg.http->host;
+    o.port = cfg.http->port;
+    if (!cfg.http->token_file.empty()) {
+      auto token = read_secret_file(cfg.http->token_file);
+      if (!token) {
+        log_->error("http.token_file {}", token.err().message);
+        return false;
+      }
+      o.token = std::move(token).value();
+    }
+    live_ = std::make_unique<live_snapshot>(cfg.publish.prefix, cfg.site, k_version);
+    auto server = http_server::start(o, *live_);
+    if (!server) {
+      log_->error("{}", server.err().message);
+      return false;
+    }
+    http_ = std::move(server).value();
+    log_->info("live page at http://{}:{}/ (metrics at /metrics{})", o.host.find(':') != std::string::npos ? "[" + o.host + "]" : o.host,
+               http_->port(), o.token.empty() ? "" : "; bearer token required");
+    return true;
+  }
+
+  void update_live_counters() {
+    if (!live_) return;
+    service_counters c;
+    const auto st = link_->stats();
+    const auto& ec = core_->counters();
+    c.messages_received = st.received;
+    c.bad_inputs = retired_bad_inputs_ + ec.bad_readings;
+    c.commands_rejected = retired_rejected_ + ec.rejected;
+    c.broker_reconnects = st.reconnects;
+    c.outbox_drops = st.dropped_outbox_of(message_class::event) + st.dropped_outbox_of(message_class::alarm_event) +
+                     st.dropped_outbox_of(message_class::state) + st.dropped_outbox_of(message_class::command);
+    if (store_) {
+      const auto sc = store_->counters();
+      c.store_write_errors = sc.errors;
+      c.store_commits = sc.commits;
+      c.store_commit_us_total = sc.total_commit_us;
+    }
+    c.broker_connected = link_->connected();
+    live_->set_counters(c);
+  }
+
   // Publish first: the outbox takes messages without waiting, the store only copies rows,
   // so neither a slow disk nor a slow broker delays the other.
   void dispatch() {
     for (const auto& e : batch_.events) {
       const bool warn = e.kind == "rejected";
       log_->log(warn ? spdlog::level::warn : spdlog::level::info, "{}", describe_event(e));
+    }
+    if (live_) {
+      for (const auto& m : batch_.messages) {
+        if (m.retained && m.cls == message_class::state) live_->on_published(m.topic, m.payload);
+      }
     }
     for (auto& m : batch_.messages) link_publish(std::move(m));
     if (store_) store_->enqueue(batch_);
@@ -178,6 +235,7 @@ class service {
           dispatch();
         }
         next_tick += k_tick;
+        update_live_counters();
         // After a stall (suspend, debugger) do not replay the missed ticks one by one.
         if (after - next_tick > std::chrono::seconds(5)) next_tick = after + k_tick;
         if (!store_ && after - last_store_attempt_ >= k_store_retry) open_store();
@@ -300,6 +358,8 @@ class service {
       notifier_.ready("config reloaded");
       return;
     }
+    retired_bad_inputs_ += core_->counters().bad_readings;  // a new engine counts from zero
+    retired_rejected_ += core_->counters().rejected;
     fresh->adopt(*core_, now, batch_);
     core_ = std::move(fresh);
     core_->service_event(now, "running", "running", "config reloaded", batch_);
@@ -309,6 +369,7 @@ class service {
 
   void shut_down() {
     notifier_.stopping();
+    if (http_) http_->stop();
     if (started_) {
       const timestamp now = service_now();
       core_->flush(now, batch_);
@@ -343,6 +404,11 @@ class service {
   timestamp event_now_{};
   timestamp next_event_tick_{};
   std::vector<inbound_message> early_;
+  // Live views (http: in the config).
+  std::unique_ptr<live_snapshot> live_;
+  std::unique_ptr<http_server> http_;
+  std::uint64_t retired_bad_inputs_ = 0;
+  std::uint64_t retired_rejected_ = 0;
 };
 
 }  // namespace
