@@ -24,6 +24,7 @@ namespace dewmargin {
 namespace {
 
 using steady = std::chrono::steady_clock;
+constexpr int k_listen_backlog = 256;
 
 // One request's socket for httplib, with a deadline for the whole request (a client that
 // sends one byte every few seconds is still cut off) and a cap on what it may send.
@@ -111,6 +112,10 @@ class gated_server final : public httplib::Server {
  public:
   gated_server() = default;
   void set_gate(http_detail::connection_gate* gate) { gate_ = gate; }
+  // httplib listens with a backlog of 5 (a compile-time constant of the library): a burst of
+  // connections then loses SYNs and each lost one costs its client a second. Listening again
+  // on the bound socket raises the backlog (Linux takes a second listen() as an update).
+  bool widen_backlog(int backlog) { return ::listen(svr_sock_, backlog) == 0; }
   // Serves one request on fd (a worker of the gate) and closes it.
   void serve(int fd, steady::time_point deadline, std::size_t max_bytes) {
     bounded_socket_stream stream(fd, deadline, max_bytes);
@@ -270,6 +275,7 @@ result<std::unique_ptr<http_server>> http_server::start(http_server_options opti
     }
     s.port = s.options.port;
   }
+  (void)s.server.widen_backlog(k_listen_backlog);  // on failure the library's small backlog stays: slower, not broken
   const auto timeout = s.options.request_timeout;
   const auto max_bytes = s.options.max_request_bytes;
   s.gate = std::make_unique<http_detail::connection_gate>(
