@@ -6,8 +6,6 @@
 namespace dewmargin::live {
 namespace {
 
-const timestamp k_now = from_unix_ms(1'784'034'000'000);  // 2026-07-14T13:00:00Z
-
 std::string zone_state(const std::string& zone, const std::string& band, const char* margin) {
   return R"({"site":"s","zone":")" + zone + R"(","ts":"2026-07-14T13:00:00Z","band":")" + band + R"(","margin_k":)" +
          margin + R"(,"alarm":{"active":false,"acknowledged":true,"shelved_until":null}})";
@@ -31,8 +29,7 @@ TEST(LiveBook, OrdersWorstBandFirstThenLowestMarginThenName) {
       {"safe-narrow", "safe", "2.4"}, {"tight-same", "tight", "1.5"}, {"odd", "tight", "null"},
   };
   for (const auto& z : zones) {
-    const auto r =
-        b.ingest(std::string("dm/zone/") + z.zone + "/state", zone_state(z.zone, z.band, z.margin), k_now, false);
+    const auto r = b.ingest(std::string("dm/zone/") + z.zone + "/state", zone_state(z.zone, z.band, z.margin));
     EXPECT_TRUE(r.error.empty()) << r.error;
     EXPECT_TRUE(r.changed);
   }
@@ -48,10 +45,10 @@ TEST(LiveBook, OrdersWorstBandFirstThenLowestMarginThenName) {
 
 TEST(LiveBook, GroupsSitesInPrefixOrderAndMatchesTheLongestPrefix) {
   live_book b({"bldg-b/dm", "bldg-a/dm", "bldg-a/dm/annex"});
-  (void)b.ingest("bldg-a/dm/zone/a1/state", zone_state("a1", "condensing", "-0.1"), k_now, true);
-  (void)b.ingest("bldg-b/dm/zone/b1/state", zone_state("b1", "safe", "4"), k_now, true);
-  (void)b.ingest("bldg-b/dm/zone/b2/state", zone_state("b2", "alarm", "0.5"), k_now, true);
-  (void)b.ingest("bldg-a/dm/annex/zone/x/state", zone_state("x", "tight", "1.0"), k_now, true);
+  (void)b.ingest("bldg-a/dm/zone/a1/state", zone_state("a1", "condensing", "-0.1"));
+  (void)b.ingest("bldg-b/dm/zone/b1/state", zone_state("b1", "safe", "4"));
+  (void)b.ingest("bldg-b/dm/zone/b2/state", zone_state("b2", "alarm", "0.5"));
+  (void)b.ingest("bldg-a/dm/annex/zone/x/state", zone_state("x", "tight", "1.0"));
   EXPECT_EQ(order(b), (std::vector<std::string>{"bldg-b/dm/b2", "bldg-b/dm/b1", "bldg-a/dm/a1", "bldg-a/dm/annex/x"}));
   EXPECT_EQ(b.counts(std::size_t{0})[2], 1);
   EXPECT_EQ(b.counts(std::size_t{1})[3], 1);
@@ -59,39 +56,39 @@ TEST(LiveBook, GroupsSitesInPrefixOrderAndMatchesTheLongestPrefix) {
 
 TEST(LiveBook, AnEmptyRetainedPayloadRemovesTheZone) {
   live_book b({"dm"});
-  (void)b.ingest("dm/zone/a/state", zone_state("a", "safe", "3"), k_now, true);
+  (void)b.ingest("dm/zone/a/state", zone_state("a", "safe", "3"));
   EXPECT_EQ(b.zone_count(), 1u);
-  const auto r = b.ingest("dm/zone/a/state", "", k_now, true);
+  const auto r = b.ingest("dm/zone/a/state", "");
   EXPECT_TRUE(r.changed);
   EXPECT_EQ(b.zone_count(), 0u);
 }
 
 TEST(LiveBook, ABadPayloadIsReportedWithItsTopicAndTheLastGoodStateStays) {
   live_book b({"dm"});
-  (void)b.ingest("dm/zone/a/state", zone_state("a", "safe", "3"), k_now, false);
-  const auto r = b.ingest("dm/zone/a/state", "{\"zone\":\"a\"}", k_now, false);
+  (void)b.ingest("dm/zone/a/state", zone_state("a", "safe", "3"));
+  const auto r = b.ingest("dm/zone/a/state", "{\"zone\":\"a\"}");
   EXPECT_EQ(r.error, "dm/zone/a/state: zone state: 'band' is not a non-empty string");
   EXPECT_FALSE(r.changed);
   ASSERT_EQ(b.zone_count(), 1u);
   EXPECT_EQ(b.zones_worst_first().front()->view.band, "safe");
-  const auto wrong = b.ingest("dm/zone/b/state", zone_state("a", "safe", "3"), k_now, false);
+  const auto wrong = b.ingest("dm/zone/b/state", zone_state("a", "safe", "3"));
   EXPECT_EQ(wrong.error, "dm/zone/b/state: zone state names zone 'a'");
 }
 
-TEST(LiveBook, AgeCountsFromTheStateTimeWhenRetainedAndFromArrivalWhenLive) {
-  live_book b({"dm"});
-  (void)b.ingest("dm/zone/a/state", zone_state("a", "safe", "3"), k_now, true);
-  (void)b.ingest("dm/zone/b/state", zone_state("b", "safe", "4"), k_now, false);
-  const auto zones = b.zones_worst_first();
-  EXPECT_EQ(format_iso8601_utc(zones[0]->as_of), "2026-07-14T13:00:00Z");
-  EXPECT_EQ(zones[1]->as_of, k_now);
+TEST(LiveBook, KeepsTheNewestStateTimeOfEachSite) {
+  live_book b({"a", "b"});
+  (void)b.ingest("a/zone/z1/state", zone_state("z1", "safe", "3"));
+  (void)b.ingest("a/zone/z2/state", R"({"zone":"z2","band":"safe","ts":"2026-07-14T13:05:00Z","margin_k":3})");
+  (void)b.ingest("a/zone/z3/state", R"({"zone":"z3","band":"safe","ts":"2026-07-14T12:00:00Z"})");
+  EXPECT_EQ(format_iso8601_utc(*b.newest_ts(0)), "2026-07-14T13:05:00Z");
+  EXPECT_FALSE(b.newest_ts(1));
 }
 
 TEST(LiveBook, FindsZonesByIdOrBySiteWhenTheIdIsShared) {
   live_book b({"a/dm", "b/dm"});
-  (void)b.ingest("a/dm/zone/lobby/state", zone_state("lobby", "safe", "3"), k_now, true);
-  (void)b.ingest("b/dm/zone/lobby/state", zone_state("lobby", "safe", "3"), k_now, true);
-  (void)b.ingest("b/dm/zone/hall/state", zone_state("hall", "safe", "3"), k_now, true);
+  (void)b.ingest("a/dm/zone/lobby/state", zone_state("lobby", "safe", "3"));
+  (void)b.ingest("b/dm/zone/lobby/state", zone_state("lobby", "safe", "3"));
+  (void)b.ingest("b/dm/zone/hall/state", zone_state("hall", "safe", "3"));
   EXPECT_TRUE(b.find_zone("hall"));
   auto shared = b.find_zone("lobby");
   ASSERT_FALSE(shared);
@@ -107,7 +104,7 @@ TEST(LiveBook, SubscribesToStatesStatusAndOptionallyEvents) {
   EXPECT_EQ(b.subscriptions(true), (std::vector<std::string>{"dm/status", "dm/zone/+/state", "dm/loop/+/state",
                                                              "dm/dehumidifier/+/state", "dm/events"}));
   EXPECT_EQ(b.subscriptions(false).size(), 4u);
-  const auto e = b.ingest("dm/events", R"({"ts":"t","kind":"ack","zone":"a","by":"JK"})", k_now, false);
+  const auto e = b.ingest("dm/events", R"({"ts":"t","kind":"ack","zone":"a","by":"JK"})");
   EXPECT_EQ(e.kind, topic_kind::events);
   ASSERT_TRUE(e.event);
   EXPECT_EQ(e.event->zone, "a");

@@ -66,19 +66,16 @@ TEST(WatchScreen, WideTerminalsGrowTheZoneThenShowWhyTheValveIsHeld) {
 
 live::live_book sample_book() {
   live::live_book b({"dm"});
-  (void)b.ingest("dm/status", R"({"state":"online","site":"s","version":"0.1.0","ts":"2026-07-14T12:00:00Z"})", k_now,
-                 true);
+  (void)b.ingest("dm/status", R"({"state":"online","site":"s","version":"0.1.0","ts":"2026-07-14T12:00:00Z"})");
   (void)b.ingest("dm/zone/room-a/state",
                  R"({"zone":"room-a","ts":"2026-07-14T12:59:30Z","band":"safe","margin_k":4.25,"dew_point_c":12.0,)"
                  R"("surface_min_c":16.25,"supply_c":16.0,"valve":"open","minutes_to_condensation":null,)"
-                 R"("alarm":{"active":false,"acknowledged":true,"shelved_until":null}})",
-                 k_now, true);
+                 R"("alarm":{"active":false,"acknowledged":true,"shelved_until":null}})");
   (void)b.ingest("dm/zone/first-south-meeting/state",
                  R"({"zone":"first-south-meeting","ts":"2026-07-14T12:58:00Z","band":"condensing","margin_k":-0.11,)"
                  R"("dew_point_c":17.21,"surface_min_c":17.1,"supply_c":16.2,"valve":"closed",)"
                  R"("valve_hold":"dew point above supply - 1.0 K","minutes_to_condensation":0.0,)"
-                 R"("alarm":{"active":true,"acknowledged":false,"shelved_until":null}})",
-                 k_now, true);
+                 R"("alarm":{"active":true,"acknowledged":false,"shelved_until":null}})");
   return b;
 }
 
@@ -95,8 +92,8 @@ TEST(WatchScreen, OnceWithoutColourPrintsHeaderCountsAndRowsWorstFirst) {
   EXPECT_EQ(lines[0], "dewmargin watch | tcp://127.0.0.1:1883 | connected | 13:00:00Z");
   EXPECT_EQ(lines[1], "unknown 0  condensing 1  alarm 0  tight 0  safe 1 | service online | K, °C");
   EXPECT_EQ(lines[2], "  zone          band       margin   dew  surf water to wet valve   alarm     age");
-  EXPECT_EQ(lines[3], "# first-south-… condensing  -0.11  17.2  17.1  16.2   0.0m closed* ACTIVE     2m");
-  EXPECT_EQ(lines[4], "  room-a        safe         4.25  12.0  16.2  16.0      - open    -         30s");
+  EXPECT_EQ(lines[3], "# first-south-… condensing  -0.11  17.2  17.1  16.2   0.0m closed* ACTIVE     1m");
+  EXPECT_EQ(lines[4], "  room-a        safe         4.25  12.0  16.2  16.0      - open    -          0s");
   for (const auto& l : lines) {
     EXPECT_LE(display_width(l), 80) << l;
     EXPECT_EQ(l.find('\x1b'), std::string::npos) << "colour without a terminal";
@@ -119,8 +116,7 @@ TEST(WatchScreen, InteractiveScreenFillsTheHeightAndKeepsTheWorstWhenRowsRunOut)
   for (int i = 0; i < 30; ++i) {
     const std::string id = "z" + std::to_string(100 + i);
     (void)b.ingest("dm/zone/" + id + "/state",
-                   R"({"zone":")" + id + R"(","band":"tight","margin_k":)" + std::to_string(1.0 + i * 0.01) + "}",
-                   k_now, false);
+                   R"({"zone":")" + id + R"(","band":"tight","margin_k":)" + std::to_string(1.0 + i * 0.01) + "}");
   }
   screen_input in;
   in.book = &b;
@@ -138,8 +134,8 @@ TEST(WatchScreen, InteractiveScreenFillsTheHeightAndKeepsTheWorstWhenRowsRunOut)
 
 TEST(WatchScreen, SeveralSitesAreGroupedUnderTheirHeadings) {
   live::live_book b({"bldg-a/dm", "bldg-b/dm"});
-  (void)b.ingest("bldg-b/dm/zone/b1/state", R"({"zone":"b1","band":"alarm","margin_k":0.5})", k_now, false);
-  (void)b.ingest("bldg-a/dm/zone/a1/state", R"({"zone":"a1","band":"safe","margin_k":3})", k_now, false);
+  (void)b.ingest("bldg-b/dm/zone/b1/state", R"({"zone":"b1","band":"alarm","margin_k":0.5})");
+  (void)b.ingest("bldg-a/dm/zone/a1/state", R"({"zone":"a1","band":"safe","margin_k":3})");
   screen_input in;
   in.book = &b;
   in.now = k_now;

@@ -210,7 +210,7 @@ struct http_server::impl {
       if (!authorized(req, res)) return;
       const auto copy = snapshot.take(false);
       live::live_book book({copy.prefix});
-      for (const auto& [topic, payload] : copy.states) (void)book.ingest(topic, payload, timestamp{}, false);
+      for (const auto& [topic, payload] : copy.states) (void)book.ingest(topic, payload);
       std::vector<const std::string*> payloads;
       for (const auto* z : book.zones_worst_first()) payloads.push_back(&z->payload);
       res.set_content(json_array_of(payloads), "application/json");

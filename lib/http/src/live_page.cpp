@@ -43,7 +43,8 @@ const std::string& live_page_html() {
   footer { color:var(--muted); font-size:12px; padding:8px 12px; }
   @media (max-width: 760px) { .c-why, .c-age, .c-water { display:none; } }
   @media (max-width: 560px) { .c-dew, .c-surf, .c-wet { display:none; } td.zone { max-width:9em; } }
-  @media (max-width: 400px) { .c-valve, .c-spark { display:none; } }
+  @media (max-width: 400px) { .c-valve { display:none; } svg.spark { width:56px; } th, td { padding:6px 3px; } }
+  .zero { opacity:.45; }
 </style>
 </head>
 <body>
@@ -155,7 +156,9 @@ function render(zones) {
     ((a.margin_k === null) - (b.margin_k === null)) || (a.margin_k - b.margin_k) || (a.zone < b.zone ? -1 : 1));
   const counts = [0, 0, 0, 0, 0];
   const rows = document.getElementById("rows");
-  const now = Date.now();
+  // Ages count back from the site's newest state, in the service's own clock (right on
+  // event time too, and whatever this device's clock says).
+  const newest = Math.max(...zones.map(z => z.ts ? Date.parse(z.ts) : -Infinity));
   const frag = document.createDocumentFragment();
   for (const z of zones) {
     counts[severity(z.band)]++;
@@ -173,7 +176,7 @@ function render(zones) {
     tr.appendChild(el("td", "c-valve l", (z.valve || "–") + (z.valve_hold ? " *" : "")));
     const [atext, acls] = alarmOf(z.alarm);
     tr.appendChild(el("td", "l " + acls, atext));
-    tr.appendChild(el("td", "c-age", z.ts ? age(now - Date.parse(z.ts)) : "–"));
+    tr.appendChild(el("td", "c-age", z.ts ? age(newest - Date.parse(z.ts)) : "–"));
     let why = z.valve_hold || "";
     if (!why && z.alarm && z.alarm.suppressed_by) why = "alarm suppressed by " + z.alarm.suppressed_by;
     if (!why && z.alarm && z.alarm.shelved_until) why = "shelved until " + z.alarm.shelved_until;
@@ -183,7 +186,9 @@ function render(zones) {
   rows.replaceChildren(frag);
   const c = document.getElementById("counts");
   c.replaceChildren();
-  for (let i = 4; i >= 0; i--) c.appendChild(el("span", "b-" + BANDS[i], BANDS[i] + " " + counts[i]));
+  for (let i = 4; i >= 0; i--) {
+    c.appendChild(el("span", "b-" + BANDS[i] + (counts[i] ? "" : " zero"), BANDS[i] + " " + counts[i]));
+  }
   if (zones.length && zones[0].site) {
     document.getElementById("title").textContent = "dewmargin live – " + zones[0].site;
     document.title = "dewmargin – " + zones[0].site;

@@ -68,8 +68,7 @@ std::string escape_label_value(const std::string& value) {
 
 std::string format_metrics(const live_snapshot::copy& s) {
   live::live_book book({s.prefix});
-  const timestamp zero{};
-  for (const auto& [topic, payload] : s.states) (void)book.ingest(topic, payload, zero, false);
+  for (const auto& [topic, payload] : s.states) (void)book.ingest(topic, payload);
 
   family info("dewmargin_info", "gauge", "The service: site and version (always 1).");
   info.sample({{"site", s.site}, {"version", s.version}}, 1);

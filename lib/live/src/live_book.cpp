@@ -20,17 +20,13 @@ std::string id_between(std::string_view rest, std::string_view head, std::string
 
 template <typename Entry, typename View>
 bool store(std::map<std::pair<std::size_t, std::string>, Entry>& into, std::pair<std::size_t, std::string> key,
-           View view, std::string_view payload, timestamp as_of) {
+           View view, std::string_view payload) {
   auto it = into.find(key);
-  if (it != into.end() && it->second.payload == payload) {
-    it->second.as_of = std::max(it->second.as_of, as_of);
-    return false;
-  }
+  if (it != into.end() && it->second.payload == payload) return false;
   Entry e;
   e.site = key.first;
   e.view = std::move(view);
   e.payload = std::string(payload);
-  e.as_of = as_of;
   into[std::move(key)] = std::move(e);
   return true;
 }
@@ -84,15 +80,13 @@ std::optional<live_book::match> live_book::classify(std::string_view topic) cons
   return match{*best, topic_kind::other, {}};
 }
 
-ingest_outcome live_book::ingest(std::string_view topic, std::string_view payload, timestamp received_at,
-                                 bool retained) {
+ingest_outcome live_book::ingest(std::string_view topic, std::string_view payload) {
   ingest_outcome out;
   const auto m = classify(topic);
   if (!m) return out;
   out.kind = m->kind;
   out.site = m->site;
   auto key = std::make_pair(m->site, m->id);
-  const auto as_of = [&](const std::optional<timestamp>& ts) { return retained && ts ? *ts : received_at; };
   const auto note_ts = [&](const std::optional<timestamp>& ts) {
     auto& newest = newest_ts_[m->site];
     if (ts && (!newest || *ts > *newest)) newest = *ts;
@@ -114,8 +108,7 @@ ingest_outcome live_book::ingest(std::string_view topic, std::string_view payloa
         return out;
       }
       note_ts(v.value().ts);
-      const auto t = as_of(v.value().ts);
-      out.changed = store(zones_, std::move(key), std::move(v).value(), payload, t);
+      out.changed = store(zones_, std::move(key), std::move(v).value(), payload);
       return out;
     }
     case topic_kind::loop: {
@@ -129,8 +122,7 @@ ingest_outcome live_book::ingest(std::string_view topic, std::string_view payloa
         return out;
       }
       note_ts(v.value().ts);
-      const auto t = as_of(v.value().ts);
-      out.changed = store(loops_, std::move(key), std::move(v).value(), payload, t);
+      out.changed = store(loops_, std::move(key), std::move(v).value(), payload);
       return out;
     }
     case topic_kind::dehumidifier: {
@@ -144,8 +136,7 @@ ingest_outcome live_book::ingest(std::string_view topic, std::string_view payloa
         return out;
       }
       note_ts(v.value().ts);
-      const auto t = as_of(v.value().ts);
-      out.changed = store(dehumidifiers_, std::move(key), std::move(v).value(), payload, t);
+      out.changed = store(dehumidifiers_, std::move(key), std::move(v).value(), payload);
       return out;
     }
     case topic_kind::status: {

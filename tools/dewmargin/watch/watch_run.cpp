@@ -271,7 +271,7 @@ void take(broker_feed& feed, live::live_book& book, const std::function<void(con
   mqtt::const_message_ptr msg;
   while (feed.next(msg)) {
     if (!msg) continue;  // connection lost: the feed's state says so
-    const auto outcome = book.ingest(msg->get_topic(), msg->get_payload_str(), wall_now(), msg->is_retained());
+    const auto outcome = book.ingest(msg->get_topic(), msg->get_payload_str());
     seen(outcome);
   }
 }

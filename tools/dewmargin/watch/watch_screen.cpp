@@ -33,7 +33,7 @@ constexpr std::array<column_spec, 12> k_specs = {{
     {column_id::valve, "valve", 7, false},
     {column_id::alarm, "alarm", 7, false},
     {column_id::age, "age", 5, true},
-    {column_id::why, "valve held because", k_why_min, false},
+    {column_id::why, "why held", k_why_min, false},
 }};
 
 // First dropped first. Zone, band and margin are never dropped.
@@ -216,9 +216,14 @@ std::string zone_row(const live::zone_entry& e, const std::vector<column>& cols,
       case column_id::alarm:
         line += paint(fit(alarm_text(alarm), c.width, false), alarm_style(alarm), in.colour);
         break;
-      case column_id::age:
-        line += fit(format_age(seconds_between(e.as_of, in.now)), c.width, true);
+      case column_id::age: {
+        // Behind the site's newest state, both in the service's own clock: right on event
+        // time (the demo) and whatever the viewer's clock says.
+        const auto newest = in.book->newest_ts(e.site);
+        const std::string age = newest && z.ts ? format_age(seconds_between(*z.ts, *newest)) : "-";
+        line += fit(age, c.width, true);
         break;
+      }
       case column_id::why: {
         std::string why = z.valve_hold;
         if (why.empty() && alarm == live::alarm_display::suppressed && z.alarm.suppressed_by) {

@@ -4,7 +4,8 @@
 //
 // Columns, left to right: marker, zone, band, margin (K), dew point, coldest surface,
 // supply water (°C), minutes to condensation ("to wet"), valve ('*' when held), alarm,
-// age of the state, and why the valve is held. At 80 columns all but "why" fit. When the
+// age of the state (how far it is behind the site's newest state, in the service's own
+// clock), and why the valve is held. At 80 columns all but "why" fit. When the
 // terminal is narrower they drop in this order: why, age, supply, dew point, surface,
 // to wet, valve, alarm; zone, band and margin always stay (the zone name is shortened
 // last; 26 columns is the least that holds them). When wider, the zone column grows to the longest name, then "why"

@@ -2,7 +2,7 @@
 // The latest published state of one or more sites, as the live views show it. Each site is
 // a topic prefix (`dewmargin`, or `bldg-a/dewmargin` on a broker that bridges several
 // buildings). Fed with (topic, payload) pairs in arrival order; an empty payload clears a
-// retained topic and removes its subject. Pure: the caller passes the receive time.
+// retained topic and removes its subject. Pure.
 #include <array>
 #include <cstddef>
 #include <map>
@@ -21,21 +21,18 @@ struct zone_entry {
   std::size_t site = 0;  // index into live_book::sites()
   zone_view view;
   std::string payload;  // as published
-  timestamp as_of;      // when this state was current: its ts if retained, else the receive time
 };
 
 struct loop_entry {
   std::size_t site = 0;
   loop_view view;
   std::string payload;
-  timestamp as_of;
 };
 
 struct dehumidifier_entry {
   std::size_t site = 0;
   dehumidifier_view view;
   std::string payload;
-  timestamp as_of;
 };
 
 struct site_entry {
@@ -61,7 +58,7 @@ class live_book {
   // The MQTT topic filters that bring every state (and, with events, <p>/events).
   [[nodiscard]] std::vector<std::string> subscriptions(bool with_events) const;
 
-  ingest_outcome ingest(std::string_view topic, std::string_view payload, timestamp received_at, bool retained);
+  ingest_outcome ingest(std::string_view topic, std::string_view payload);
 
   [[nodiscard]] const std::vector<site_entry>& sites() const { return sites_; }
   // Zones grouped by site (in prefix order), worst first within a site: band severity,
