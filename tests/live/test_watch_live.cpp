@@ -177,7 +177,7 @@ TEST(LiveWatch, InteractiveViewUnderTmuxAcknowledgesAndQuitsOnQ) {
   ASSERT_TRUE(eventually(
       [&] {
         screen = tmux.screen();
-        return screen.find("done: ack room-a unacknowledged -> acknowledged by JK") != std::string::npos;
+        return screen.find("service answer: ack room-a unacknowledged -> acknowledged by JK") != std::string::npos;
       },
       10s))
       << screen;

@@ -43,7 +43,10 @@ const std::string& live_page_html() {
   footer { color:var(--muted); font-size:12px; padding:8px 12px; }
   @media (max-width: 760px) { .c-why, .c-age, .c-water { display:none; } }
   @media (max-width: 560px) { .c-dew, .c-surf, .c-wet { display:none; } td.zone { max-width:9em; } }
-  @media (max-width: 400px) { .c-valve { display:none; } svg.spark { width:56px; } th, td { padding:6px 3px; } }
+  @media (max-width: 400px) {
+    .c-valve { display:none; } svg.spark { width:44px; } th, td { padding:6px 3px; }
+    td.zone { max-width:7.5em; font-size:14px; } .band { font-size:12px; padding:1px 3px; } .margin { font-size:15px; }
+  }
   .zero { opacity:.45; }
 </style>
 </head>

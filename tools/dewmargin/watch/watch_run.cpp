@@ -480,7 +480,7 @@ class interactive_view {
     const auto& e = *r.event;
     const bool ours = e.zone == waiting_->zone || (e.kind == "rejected" && e.zone.empty());
     if (!ours || (e.kind != "ack" && e.kind != "shelve" && e.kind != "unshelve" && e.kind != "rejected")) return false;
-    message_ = (e.kind == "rejected" ? "REJECTED " : "done: ") + e.text;
+    message_ = "service answer: " + e.text;
     waiting_.reset();
     return true;
   }
