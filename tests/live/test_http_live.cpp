@@ -190,6 +190,34 @@ TEST(LiveHttp, AListenAddressOtherThanLoopbackWithoutTokenIsRefusedAtCheck) {
       << r.out;
 }
 
+TEST(LiveHttp, APortInUseIsLoggedAndSupervisionGoesOn) {
+  live_site site;
+  // Something else holds the port.
+  const int holder = ::socket(AF_INET, SOCK_STREAM | SOCK_CLOEXEC, 0);
+  const int one = 1;
+  ::setsockopt(holder, SOL_SOCKET, SO_REUSEADDR, &one, sizeof one);
+  sockaddr_in addr{};
+  addr.sin_family = AF_INET;
+  addr.sin_port = htons(static_cast<std::uint16_t>(site.port));
+  addr.sin_addr.s_addr = htonl(INADDR_LOOPBACK);
+  ASSERT_EQ(::bind(holder, reinterpret_cast<sockaddr*>(&addr), sizeof addr), 0);
+  ASSERT_EQ(::listen(holder, 1), 0);
+  site.service->start();
+  ASSERT_TRUE(site.observer->wait_for_count("dm/zone/room-b/state", 1, 15s)) << site.service->log_text();
+  publish_readings(*site.plant, /*room_a_wet=*/true, /*room_b_wet=*/false);
+  EXPECT_TRUE(site.observer->wait_for(
+      "dm/zone/room-a/state", [](const received_message& m) { return as_json(m).value("band", "") == "condensing"; },
+      10s));
+  EXPECT_NE(site.service->log_text().find("http listen 127.0.0.1:" + std::to_string(site.port) +
+                                          ": cannot bind (address in use, or not an address of this machine); "
+                                          "retrying every 60 s"),
+            std::string::npos)
+      << site.service->log_text();
+  EXPECT_TRUE(site.service->running());
+  EXPECT_EQ(site.service->stop(), 0);
+  ::close(holder);
+}
+
 int open_idle_connection(int port) {
   const int fd = ::socket(AF_INET, SOCK_STREAM | SOCK_CLOEXEC, 0);
   sockaddr_in addr{};

@@ -117,13 +117,18 @@ class gated_server final : public httplib::Server {
   // on the bound socket raises the backlog (Linux takes a second listen() as an update).
   bool widen_backlog(int backlog) { return ::listen(svr_sock_, backlog) == 0; }
   // Serves one request on fd (a worker of the gate) and closes it.
-  void serve(int fd, steady::time_point deadline, std::size_t max_bytes) {
-    bounded_socket_stream stream(fd, deadline, max_bytes);
-    bool closed = false;
-    process_request(stream, /*close_connection=*/true, closed, [&](httplib::Request& req) {
-      stream.get_remote_ip_and_port(req.remote_addr, req.remote_port);
-      stream.get_local_ip_and_port(req.local_addr, req.local_port);
-    });
+  void serve(int fd, steady::time_point deadline, std::size_t max_bytes) noexcept {
+    try {
+      bounded_socket_stream stream(fd, deadline, max_bytes);
+      bool closed = false;
+      process_request(stream, /*close_connection=*/true, closed, [&](httplib::Request& req) {
+        stream.get_remote_ip_and_port(req.remote_addr, req.remote_port);
+        stream.get_local_ip_and_port(req.local_addr, req.local_port);
+      });
+    } catch (...) {
+      // httplib answers a throwing handler with 500 itself; anything else ends this
+      // connection only, never the service.
+    }
     ::shutdown(fd, SHUT_RDWR);
     ::close(fd);
   }
@@ -250,7 +255,9 @@ struct http_server::impl {
   void stop() {
     if (stopped.exchange(true)) return;
     // stop() does nothing before the listener has started running: wait for it, briefly.
-    for (int i = 0; i < 1000 && !server.is_running(); ++i) std::this_thread::sleep_for(std::chrono::milliseconds(1));
+    for (int i = 0; listener.joinable() && i < 1000 && !server.is_running(); ++i) {
+      std::this_thread::sleep_for(std::chrono::milliseconds(1));
+    }
     server.stop();
     if (listener.joinable()) listener.join();
     if (gate) gate->stop();
