@@ -71,12 +71,32 @@ bool parse_log_level(const std::string& text, spdlog::level::level_enum& out) {
   return false;
 }
 
+std::string problem_reporter::problem_key(const std::string& message) {
+  constexpr std::size_t k_max_key = 200;
+  std::string key;
+  for (std::size_t i = 0; i < message.size() && key.size() < k_max_key; ++i) {
+    const auto is_digit = [&](std::size_t j) { return j < message.size() && message[j] >= '0' && message[j] <= '9'; };
+    // A decimal point inside a number belongs to it ("0.25" and "30" are both "#").
+    const bool digit = is_digit(i) || (message[i] == '.' && i > 0 && is_digit(i - 1) && is_digit(i + 1));
+    if (!digit) {
+      key.push_back(message[i]);
+    } else if (key.empty() || key.back() != '#') {
+      key.push_back('#');
+    }
+  }
+  return key;
+}
+
 void problem_reporter::report(spdlog::level::level_enum level, const std::string& message) {
+  if (level < spdlog::level::warn) {
+    log_->log(level, "{}", message);
+    return;
+  }
   const auto now = std::chrono::steady_clock::now();
   unsigned held_back = 0;
   {
     std::lock_guard<std::mutex> lock(mutex_);
-    auto& s = seen_[message.substr(0, 60)];
+    auto& s = seen_[problem_key(message)];
     if (s.last.time_since_epoch().count() != 0 && now - s.last < interval_) {
       ++s.held_back;
       return;
@@ -84,7 +104,7 @@ void problem_reporter::report(spdlog::level::level_enum level, const std::string
     held_back = s.held_back;
     s.held_back = 0;
     s.last = now;
-    if (seen_.size() > 1000) seen_.clear();  // bounded: distinct messages are few
+    if (seen_.size() > 1000) seen_.clear();  // bounded: distinct problems are few
   }
   if (held_back > 0) {
     log_->log(level, "{} ({} similar held back)", message, held_back);

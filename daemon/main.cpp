@@ -50,7 +50,13 @@ int main(int argc, char** argv) {
   try {
     return dewmargin::daemon::run_service(options, log);
   } catch (const std::exception& e) {
+    // An internal fault (tick, publishing, storing, out of memory, a broken invariant):
+    // stop loudly, systemd restarts the service. Faults of one message are contained
+    // before they get here (message_containment.h).
     log->critical("stopping on an unexpected error: {}", e.what());
+    return 1;
+  } catch (...) {
+    log->critical("stopping on an unexpected error of unknown type");
     return 1;
   }
 }

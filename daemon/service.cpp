@@ -14,8 +14,11 @@
 #include "dewmargin/secret_file.h"
 #include "dewmargin/mqtt_link.h"
 #include "dewmargin/store_writer.h"
+#include "dewmargin/tick_driver.h"
 #include "dewmargin/version.h"
+#include "event_log_budget.h"
 #include "logging.h"
+#include "message_containment.h"
 #include "signals.h"
 #include "systemd_notify.h"
 
@@ -23,12 +26,19 @@ namespace dewmargin::daemon {
 namespace {
 
 constexpr auto k_tick = std::chrono::seconds(1);
+constexpr auto k_http_retry = std::chrono::seconds(60);  // the web server, when it could not start
 constexpr auto k_max_wait = std::chrono::milliseconds(200);  // signal and watchdog latency
 constexpr int k_burst = 256;
 constexpr std::size_t k_max_early_messages = 1000;
-constexpr auto k_store_retry = std::chrono::seconds(60);
+// Opening the history database again after a failure: soon at first (a lock or a full disk
+// clears quickly), then less often.
+constexpr auto k_store_retry_first = std::chrono::seconds(5);
+constexpr auto k_store_retry_max = std::chrono::seconds(60);
 constexpr auto k_stop_store_timeout = std::chrono::milliseconds(2000);
 constexpr auto k_stop_link_timeout = std::chrono::milliseconds(2000);
+// Repeated problems, contained message faults and held-back event lines: at most one line
+// per problem and minute, and a summary line a minute.
+constexpr auto k_report_interval = std::chrono::seconds(60);
 
 timestamp wall_now() {
   return std::chrono::time_point_cast<std::chrono::milliseconds>(std::chrono::system_clock::now());
@@ -54,12 +64,16 @@ std::string describe_event(const event_record& e) {
 class service {
  public:
   service(const service_options& o, std::shared_ptr<spdlog::logger> log)
-      : options_(o), log_(std::move(log)), problems_(log_, std::chrono::seconds(10)) {}
+      : options_(o),
+        log_(std::move(log)),
+        problems_(log_, k_report_interval),
+        containment_(k_report_interval, [this](const containment_report& r) { report_contained(r); }),
+        log_budget_(event_log_budget::limits{k_report_interval, 5}, std::chrono::steady_clock::now()) {}
 
   int run() {
     auto loaded = load_config_file(options_.config_path);
     if (!loaded.ok()) {
-      for (const auto& d : loaded.errors) log_->error("{}", d.to_string());
+      for (const auto& d : loaded.errors) log_->error("{}", escape_for_report(d.to_string(), 400));
       return 2;
     }
     if (!apply_log_level(*loaded.config)) return 2;
@@ -74,7 +88,10 @@ class service {
       return 1;
     }
     link_ = std::make_unique<mqtt_link>(std::move(link.value()));
-    if (!start_http(cfg)) return 1;
+    if (cfg.http) {
+      live_ = std::make_unique<live_snapshot>(cfg.publish.prefix, cfg.site, k_version);
+      start_http(*cfg.http);
+    }
 
     open_store();
     restored_state restored;
@@ -139,38 +156,90 @@ class service {
     auto opened = store_writer::open(std::move(opts));
     if (!opened) {
       // Supervision matters more than history: go on without the disk, retry later.
-      problems_.report(spdlog::level::err,
-                       opened.err().message + "; running without history, retrying every 60 s");
+      problems_.report(spdlog::level::err, opened.err().message + "; running without history, trying again in " +
+                                               std::to_string(store_retry_.count()) + " s");
+      store_open_failed_ = true;
+      next_store_retry_ = last_store_attempt_ + store_retry_;
+      store_retry_ = std::min<std::chrono::seconds>(store_retry_ * 2, k_store_retry_max);
       return;
     }
     store_ = std::make_unique<store_writer>(std::move(opened.value()));
+    if (store_open_failed_) log_->info("history: {} opened, writing again", store_->path().string());
+    store_open_failed_ = false;
+    store_retry_ = k_store_retry_first;
+    store_seen_ = store_->counters();
+  }
+
+  // Once a second: a recovery line when the store writes again after failed commits.
+  void watch_store() {
+    if (!store_) return;
+    const store_writer_counters now = store_->counters();
+    if (now.errors > store_seen_.errors) {
+      store_failing_since_ = store_failing_since_.value_or(store_seen_.errors);
+    } else if (store_failing_since_ && now.commits > store_seen_.commits) {
+      log_->info("history: {} writable again, rows committed ({} failed attempts meanwhile)", store_->path().string(),
+                 now.errors - *store_failing_since_);
+      store_failing_since_.reset();
+    }
+    store_seen_ = now;
+  }
+
+  // Once a second: drops counted for the summary line; the line once a minute.
+  void watch_drops(std::chrono::steady_clock::time_point now) {
+    const mqtt_link_stats st = link_->stats();
+    std::uint64_t outbox = 0;
+    for (const auto d : st.dropped_outbox) outbox += d;
+    log_budget_.count("inbound messages dropped (queue full)", st.dropped_inbound - link_seen_.dropped_inbound);
+    log_budget_.count("outbound messages dropped (outbox full)", outbox - outbox_drops_seen_);
+    outbox_drops_seen_ = outbox;
+    link_seen_ = st;
+    const std::uint64_t contained = containment_.dropped_total();
+    log_budget_.count("messages dropped on a handling error", contained - contained_seen_);
+    contained_seen_ = contained;
+    if (auto summary = log_budget_.summary_due(now)) {
+      const bool lost = summary->find("dropped") != std::string::npos;
+      log_->log(lost ? spdlog::level::warn : spdlog::level::info, "{}", *summary);
+    }
+  }
+
+  // One message could not be handled: the message is gone, supervision goes on. Reported
+  // in the log and as a service event, both at most once per interval.
+  void report_contained(const containment_report& r) {
+    std::string text = "message on " + r.topic + " dropped: " + r.error;
+    if (r.dropped_since_last > 0) {
+      text += " (" + std::to_string(r.dropped_since_last) + " more dropped since the last report)";
+    }
+    log_->error("{}", text);
+    if (started_) core_->service_event(service_now(), "running", "running", text, batch_);
   }
 
   // ---- live views (lib/http): the web server gets copies of the published states ----
 
-  bool start_http(const site_config& cfg) {
-    if (!cfg.http) return true;
+  // Like the history: supervision matters more than the page. A server that cannot start
+  // (port taken, token file missing) is logged and tried again every minute.
+  void start_http(const http_config& h) {
+    next_http_attempt_ = std::chrono::steady_clock::now() + k_http_retry;
     http_server_options o;
-    o.host = cfg.http->host;
-    o.port = cfg.http->port;
-    if (!cfg.http->token_file.empty()) {
-      auto token = read_secret_file(cfg.http->token_file);
+    o.host = h.host;
+    o.port = h.port;
+    if (!h.token_file.empty()) {
+      auto token = read_secret_file(h.token_file);
       if (!token) {
-        log_->error("http.token_file {}", token.err().message);
-        return false;
+        problems_.report(spdlog::level::err, "http.token_file " + token.err().message +
+                                                 "; no web server until it can be read (retrying every 60 s)");
+        return;
       }
       o.token = std::move(token).value();
     }
-    live_ = std::make_unique<live_snapshot>(cfg.publish.prefix, cfg.site, k_version);
     auto server = http_server::start(o, *live_);
     if (!server) {
-      log_->error("{}", server.err().message);
-      return false;
+      problems_.report(spdlog::level::err, server.err().message + "; retrying every 60 s");
+      return;
     }
     http_ = std::move(server).value();
-    log_->info("live page at http://{}:{}/ (metrics at /metrics{})", o.host.find(':') != std::string::npos ? "[" + o.host + "]" : o.host,
-               http_->port(), o.token.empty() ? "" : "; bearer token required");
-    return true;
+    const std::string host = o.host.find(':') != std::string::npos ? "[" + o.host + "]" : o.host;
+    log_->info("live page at http://{}:{}/ (metrics at /metrics{})", host, http_->port(),
+               o.token.empty() ? "" : "; bearer token required");
   }
 
   void update_live_counters() {
@@ -198,6 +267,7 @@ class service {
   // so neither a slow disk nor a slow broker delays the other.
   void dispatch() {
     for (const auto& e : batch_.events) {
+      if (!log_budget_.admit(e.kind)) continue;
       const bool warn = e.kind == "rejected";
       log_->log(warn ? spdlog::level::warn : spdlog::level::info, "{}", describe_event(e));
     }
@@ -236,9 +306,12 @@ class service {
         }
         next_tick += k_tick;
         update_live_counters();
+        if (live_ && !http_ && core_->config().http && after >= next_http_attempt_) start_http(*core_->config().http);
         // After a stall (suspend, debugger) do not replay the missed ticks one by one.
         if (after - next_tick > std::chrono::seconds(5)) next_tick = after + k_tick;
-        if (!store_ && after - last_store_attempt_ >= k_store_retry) open_store();
+        if (!store_ && after >= next_store_retry_) open_store();
+        watch_store();
+        watch_drops(after);
       }
       if (!announced_ready && link_->ready()) {
         announced_ready = true;
@@ -249,7 +322,7 @@ class service {
       notifier_.keep_alive(after);
       switch (signals_.poll()) {
         case signal_request::none: break;
-        case signal_request::reload: reload(); break;
+        case signal_request::reload: reload_contained(); break;
         case signal_request::stop: return;
       }
     }
@@ -263,14 +336,13 @@ class service {
     dispatch();
     started_ = true;
     event_now_ = now;
-    next_event_tick_ = now + k_tick;
+    event_ticks_.emplace(now);
   }
 
   // Each message's outputs go out before the next message is taken (alarm latency).
   void handle(const inbound_message& msg) {
     if (!event_time_) {
-      core_->on_message(msg.topic, msg.payload, wall_now(), batch_, msg.retained);
-      if (!batch_.empty()) dispatch();
+      contain(msg, wall_now());
       return;
     }
     const std::optional<timestamp> ts = reading_time(msg.payload);
@@ -286,7 +358,15 @@ class service {
       for (const auto& m : early) handle(m);
     }
     if (ts && *ts > event_now_) advance_event_time(*ts);
-    core_->on_message(msg.topic, msg.payload, ts.value_or(event_now_), batch_, msg.retained);
+    contain(msg, ts.value_or(event_now_));
+  }
+
+  // Only the core's handling of the message is contained (see message_containment.h);
+  // what it produced before a fault still goes out, since the core's state already
+  // reflects it. Publishing and storing are outside: a fault there stops the service.
+  void contain(const inbound_message& msg, timestamp now) {
+    (void)containment_.run(msg.topic,
+                           [&] { core_->on_message(msg.topic, msg.payload, now, batch_, msg.retained); });
     if (!batch_.empty()) dispatch();
   }
 
@@ -306,15 +386,36 @@ class service {
     }
   }
 
-  // Ticks once per second of event time passed; a jump of more than an hour ticks once.
+  // Event time drives the tick by the core's one rule (tick_driver.h).
   void advance_event_time(timestamp t) {
-    if (t - next_event_tick_ > std::chrono::hours(1)) next_event_tick_ = t;
-    while (next_event_tick_ <= t) {
-      core_->tick(next_event_tick_, batch_);
+    event_ticks_->advance_to(t, [this](timestamp at) {
+      core_->tick(at, batch_);
       dispatch();
-      next_event_tick_ += k_tick;
-    }
+    });
     event_now_ = t;
+  }
+
+  // A config file comes from outside: a fault while taking it in (a value the core cannot
+  // publish) rejects the reload as long as the running core is still the old one. Once the
+  // new core is in place there is nothing to go back to: the fault stops the service.
+  void reload_contained() {
+    const engine* before = core_.get();
+    try {
+      reload();
+    } catch (const std::bad_alloc&) {
+      throw;
+    } catch (const std::logic_error&) {
+      throw;
+    } catch (const std::exception& e) {
+      if (core_.get() != before) throw;
+      batch_.clear();  // what the new config produced before the fault must not go out
+      const std::string why = escape_for_report(e.what());
+      log_->error("reload of {} failed: {}; the previous config stays in force", options_.config_path.string(), why);
+      core_->service_event(service_now(), "running", "running",
+                           "reload rejected (" + why + "); the previous config stays in force", batch_);
+      dispatch();
+      notifier_.ready("reload rejected; previous config in force");
+    }
   }
 
   timestamp service_now() const { return event_time_ ? event_now_ : wall_now(); }
@@ -325,8 +426,10 @@ class service {
     auto loaded = load_config_file(options_.config_path);
     const timestamp now = service_now();
     if (!loaded.ok()) {
-      for (const auto& d : loaded.errors) log_->error("{}", d.to_string());
-      const std::string first = loaded.errors.empty() ? std::string("unknown error") : loaded.errors.front().to_string();
+      for (const auto& d : loaded.errors) log_->error("{}", escape_for_report(d.to_string(), 400));
+      // The file may hold anything (binary junk): escaped before it goes into an event.
+      const std::string first =
+          loaded.errors.empty() ? std::string("unknown error") : escape_for_report(loaded.errors.front().to_string());
       core_->service_event(now, "running", "running",
                            "reload rejected (" + std::to_string(loaded.errors.size()) + " errors; first: " + first +
                                "); the previous config stays in force",
@@ -390,23 +493,34 @@ class service {
   service_options options_;
   std::shared_ptr<spdlog::logger> log_;
   problem_reporter problems_;
+  message_containment containment_;
+  event_log_budget log_budget_;
   signal_inbox signals_;  // before any thread is started
   systemd_notifier notifier_;
   std::unique_ptr<engine> core_;
   std::unique_ptr<store_writer> store_;
   std::unique_ptr<mqtt_link> link_;
   std::chrono::steady_clock::time_point last_store_attempt_{};
+  std::chrono::steady_clock::time_point next_store_retry_{};
+  std::chrono::seconds store_retry_ = k_store_retry_first;
+  bool store_open_failed_ = false;
+  store_writer_counters store_seen_{};
+  std::optional<std::uint64_t> store_failing_since_;  // error count before the failures began
+  mqtt_link_stats link_seen_{};
+  std::uint64_t outbox_drops_seen_ = 0;
+  std::uint64_t contained_seen_ = 0;
   engine_output batch_;
   restored_state restored_;
   bool started_ = false;
   // Event-time mode (clock.source: readings).
   bool event_time_ = false;
   timestamp event_now_{};
-  timestamp next_event_tick_{};
+  std::optional<tick_driver> event_ticks_;
   std::vector<inbound_message> early_;
   // Live views (http: in the config).
   std::unique_ptr<live_snapshot> live_;
   std::unique_ptr<http_server> http_;
+  std::chrono::steady_clock::time_point next_http_attempt_{};
   std::uint64_t retired_bad_inputs_ = 0;
   std::uint64_t retired_rejected_ = 0;
 };

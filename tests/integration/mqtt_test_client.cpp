@@ -3,8 +3,10 @@
 #include <mqtt/async_client.h>
 #include <unistd.h>
 
+#include <deque>
 #include <random>
 #include <stdexcept>
+#include <thread>
 
 namespace dewmargin::test_support {
 namespace {
@@ -133,6 +135,31 @@ std::vector<received_message> mqtt_test_client::messages_on(const std::string& t
 std::size_t mqtt_test_client::size() const {
   std::lock_guard<std::mutex> lock(mutex_);
   return messages_.size();
+}
+
+std::chrono::steady_clock::duration mqtt_test_client::publish_paced(const std::string& topic,
+                                                                    const std::vector<std::string>& payloads,
+                                                                    std::chrono::microseconds interval) {
+  constexpr std::size_t k_max_unacknowledged = 50;
+  const auto t0 = std::chrono::steady_clock::now();
+  std::deque<::mqtt::delivery_token_ptr> pending;
+  const auto settle_oldest = [&] {
+    if (!pending.front()->wait_for(k_ack_timeout)) {
+      throw std::runtime_error("test client: no acknowledgement within 5 s for " + topic);
+    }
+    pending.pop_front();
+  };
+  try {
+    for (std::size_t i = 0; i < payloads.size(); ++i) {
+      std::this_thread::sleep_until(t0 + interval * static_cast<long>(i));
+      while (pending.size() >= k_max_unacknowledged) settle_oldest();
+      pending.push_back(client_->publish(::mqtt::make_message(topic, payloads[i], 1, false)));
+    }
+    while (!pending.empty()) settle_oldest();
+  } catch (const ::mqtt::exception& e) {
+    throw std::runtime_error("test client: publish to " + topic + ": " + e.what());
+  }
+  return std::chrono::steady_clock::now() - t0;
 }
 
 void mqtt_test_client::publish(const std::string& topic, const std::string& payload, bool retained) {

@@ -57,6 +57,12 @@ class mqtt_test_client {
   // QoS 1, waits up to 5 s for the acknowledgement; throws on failure.
   void publish(const std::string& topic, const std::string& payload, bool retained = false);
 
+  // QoS 1 without waiting for each acknowledgement: one message every `interval` (a flood at
+  // a known rate; at most 50 unacknowledged at a time), then waits up to 10 s for the
+  // remaining acknowledgements. Throws on failure; returns the time it took.
+  std::chrono::steady_clock::duration publish_paced(const std::string& topic, const std::vector<std::string>& payloads,
+                                                    std::chrono::microseconds interval);
+
   [[nodiscard]] bool connected() const;
 
  private:

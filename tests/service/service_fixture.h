@@ -26,6 +26,7 @@ class service_under_test {
   int stop(std::chrono::milliseconds grace = std::chrono::seconds(5));  // SIGTERM; exit code
   int kill_now();
   bool running() { return process_.running(); }
+  [[nodiscard]] pid_t pid() const { return process_.pid(); }
   bool send_signal(int s) { return process_.send_signal(s); }
   void rewrite_config(const std::string& text) const;
 

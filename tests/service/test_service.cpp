@@ -94,6 +94,19 @@ TEST_F(Service, CondensingReadingClosesTheValveAndRaisesABandEventWithinOneSecon
   EXPECT_LT(elapsed, 1s);
 }
 
+// One invalid UTF-8 byte made the core throw and stopped the service (issue 8). Whether the
+// core refuses it or the service contains the fault, supervision must go on.
+TEST_F(Service, OneInvalidUtf8ByteInASensorPayloadDoesNotStopSupervision) {
+  start_service();
+  publish_readings(17.5);
+  ASSERT_TRUE(wait_zone_state("room-a", "safe"));
+  for (int i = 0; i < 3; ++i) watcher_->publish("r/a/temp", std::string("\x80", 1));
+  const std::size_t from = watcher_->size();
+  watcher_->publish("r/a/surface", "12.5");
+  ASSERT_TRUE(wait_event(*watcher_, "band", "room-a", 5s, from)) << "the next reading was not handled";
+  EXPECT_TRUE(service_->running());
+}
+
 TEST_F(Service, AcknowledgementUpdatesStateAndIsKeptInTheHistory) {
   start_service();
   publish_readings(12.5);

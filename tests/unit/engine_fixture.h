@@ -3,6 +3,7 @@
 // time and keeps what it published — shared by the engine tests.
 #include <cmath>
 #include <cstdio>
+#include <memory>
 #include <nlohmann/json.hpp>
 #include <string>
 #include <utility>
@@ -10,6 +11,7 @@
 
 #include "dewmargin/config.h"
 #include "dewmargin/engine.h"
+#include "dewmargin/tick_driver.h"
 
 namespace dewmargin::testing_support {
 
@@ -85,26 +87,33 @@ struct published {
 class engine_driver {
  public:
   explicit engine_driver(site_config cfg, std::int64_t start_s = 1'800'000'000, const restored_state& restored = {})
-      : engine_(std::move(cfg)), now_(from_unix_ms(start_s * 1000)) {
-    engine_.begin(now_, restored, out_);
+      : engine_(std::make_unique<engine>(std::move(cfg))), now_(from_unix_ms(start_s * 1000)), ticks_(now_) {
+    engine_->begin(now_, restored, out_);
     collect();
-    next_tick_ = now_ + std::chrono::seconds(1);
   }
 
-  // Advances simulated time by `seconds`, ticking once per second, then delivers.
+  // A config reload, as the service does it: a new engine adopts the running one; time and
+  // ticks go on.
+  void reload(site_config cfg) {
+    auto fresh = std::make_unique<engine>(std::move(cfg));
+    fresh->adopt(*engine_, now_, out_);
+    engine_ = std::move(fresh);
+    collect();
+  }
+
+  // Advances simulated time by `seconds`, ticking by the core's rule (tick_driver.h), then delivers.
   void at(double seconds_from_now, const std::string& topic, const std::string& payload) {
     advance(seconds_from_now);
-    engine_.on_message(topic, payload, now_, out_);
+    engine_->on_message(topic, payload, now_, out_);
     collect();
   }
   void send(const std::string& topic, const std::string& payload) { at(0, topic, payload); }
   void advance(double seconds) {
     const timestamp until = now_ + std::chrono::milliseconds(static_cast<std::int64_t>(seconds * 1000.0));
-    while (next_tick_ <= until) {
-      engine_.tick(next_tick_, out_);
+    ticks_.advance_to(until, [this](timestamp at) {
+      engine_->tick(at, out_);
       collect();
-      next_tick_ += std::chrono::seconds(1);
-    }
+    });
     now_ = until;
   }
   // Feeds a full set of readings for a zone-1/zone-2 site in one go.
@@ -161,7 +170,7 @@ class engine_driver {
   }
   const std::vector<published>& log() const { return log_; }
   const engine_output& stored() const { return stored_; }
-  engine& core() { return engine_; }
+  engine& core() { return *engine_; }
   timestamp now() const { return now_; }
 
  private:
@@ -174,12 +183,12 @@ class engine_driver {
     out_.clear();
   }
 
-  engine engine_;
+  std::unique_ptr<engine> engine_;
   engine_output out_;
   engine_output stored_;
   std::vector<published> log_;
   timestamp now_;
-  timestamp next_tick_;
+  tick_driver ticks_;
 };
 
 }  // namespace dewmargin::testing_support

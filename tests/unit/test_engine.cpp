@@ -3,6 +3,8 @@
 
 #include <gtest/gtest.h>
 
+#include <set>
+
 #include "dewmargin/psychro.h"
 #include "engine_fixture.h"
 
@@ -136,6 +138,11 @@ TEST(Engine, NoAlarmWhileWaitingForFirstReadingsThenMissingRaisesIt) {
   const auto inputs = d.events("input");
   EXPECT_FALSE(inputs.empty());
   for (const auto& e : inputs) EXPECT_EQ(e["to"], "missing");
+  // Exactly the measurements went missing, not the switch and the contact.
+  std::set<std::string> missing;
+  for (const auto& e : inputs) missing.insert(e["topic"].get<std::string>());
+  EXPECT_EQ(missing, (std::set<std::string>{"plant/a/supply", "plant/a/return", "plant/a/flow", "b/z1/temp",
+                                            "b/z1/rh", "b/z1/surface", "b/z2/temp", "b/z2/rh"}));
   const auto z1 = d.last_json("dm/zone/z1/state");
   EXPECT_EQ(z1["band"], "unknown");
   EXPECT_EQ(z1["alarm"]["active"], true);
@@ -503,6 +510,121 @@ TEST(Engine, AdoptKeepsReadingsAlarmsAndSetpointsAcrossReload) {
   out.clear();
   reloaded.tick(d.now() + std::chrono::seconds(1), out);
   for (const auto& m : out.messages) EXPECT_NE(m.topic, "dm/events") << m.payload;
+}
+
+TEST(Engine, AdoptKeepsValveAcknowledgementAndShelving) {
+  engine_driver d(small_site());
+  d.readings(24, 50, 17, 16);
+  d.send("b/z1/surface", "12.5");  // condensing: valve closed, alarm unacknowledged
+  d.send("dm/cmd/ack", R"({"zone":"z1","by":"jk"})");
+  d.send("dm/cmd/shelve", R"({"zone":"z2","by":"jk","minutes":30})");
+  const auto until = d.last_json("dm/zone/z2/state")["alarm"]["shelved_until"];
+  ASSERT_TRUE(until.is_string());
+  d.advance(1);
+  d.clear_log();
+  d.reload(small_site());
+  const auto z1 = d.last_json("dm/zone/z1/state");
+  EXPECT_EQ(z1["band"], "condensing");
+  EXPECT_EQ(z1["valve"], "closed");
+  EXPECT_EQ(z1["alarm"]["active"], true);
+  EXPECT_EQ(z1["alarm"]["acknowledged"], true);
+  EXPECT_EQ(d.last_payload("b/z1/valve"), "closed");
+  EXPECT_EQ(d.last_json("dm/zone/z2/state")["alarm"]["shelved_until"], until);
+  EXPECT_EQ(d.last_json("dm/zone/z2/state")["valve"], "open");
+  EXPECT_TRUE(d.events().empty());
+  // Still condensing after the reload: the acknowledgement holds, nothing re-arms.
+  d.advance(2);
+  d.readings(24, 50, 12.5, 16);
+  EXPECT_EQ(d.last_json("dm/zone/z1/state")["alarm"]["acknowledged"], true);
+  EXPECT_TRUE(d.events("band").empty());
+  EXPECT_TRUE(d.events("valve").empty());
+}
+
+TEST(Engine, AdoptKeepsTheValvesReopenTimer) {
+  engine_driver d(small_site());
+  d.readings(24, 50, 17, 16);
+  d.send("b/z1/window", "open");
+  ASSERT_EQ(d.last_payload("b/z1/valve"), "closed");
+  d.at(10, "b/z1/window", "closed");  // fine from here: reopens 600 s later
+  for (int i = 0; i < 5; ++i) {
+    d.advance(60);
+    d.readings(24, 50, 17, 16);
+  }
+  d.reload(small_site());  // 300 s into the 600
+  for (int i = 0; i < 4; ++i) {
+    d.advance(60);
+    d.readings(24, 50, 17, 16);
+  }
+  d.advance(59);  // 599 s since the window closed
+  EXPECT_EQ(d.last_payload("b/z1/valve"), "closed");
+  d.advance(1);
+  EXPECT_EQ(d.last_payload("b/z1/valve"), "open") << "the reload must not restart the 600 s";
+  EXPECT_EQ(d.events("valve").back()["reason"], "zone safe, window closed for 600 s");
+}
+
+TEST(Engine, AdoptKeepsTheCurrentMinutesSample) {
+  engine_driver d(small_site(), 1'800'000'000 - 1'800'000'000 % 60);
+  d.readings(24, 50, 17, 16);
+  d.advance(60);  // the first minute closes
+  d.at(5, "b/z1/surface", "15");  // the minute's lowest margin, before the reload
+  d.at(5, "b/z1/surface", "16");
+  d.reload(small_site());
+  d.at(5, "b/z1/surface", "17");
+  d.advance(46);  // the minute closes
+  const zone_sample* z1 = nullptr;
+  for (const auto& s : d.stored().samples) {
+    if (s.zone == "z1") z1 = &s;
+  }
+  ASSERT_NE(z1, nullptr);
+  EXPECT_EQ(to_unix_ms(z1->minute_start), (1'800'000'000 - 1'800'000'000 % 60 + 60) * 1000LL);
+  EXPECT_NEAR(*z1->min_margin_k, 15 - dp(24, 50), 1e-9);
+}
+
+TEST(Engine, SwitchesAndContactsNeverGoStale) {
+  engine_driver d(small_site());
+  d.send("b/z1/window", "closed");
+  d.send("b/z1/wet", "0");
+  // Two hours in which every measurement reports each minute and the contacts never again.
+  for (int i = 0; i < 120; ++i) {
+    d.readings(24, 50, 17, 16);
+    d.send("plant/a/return", "19");
+    d.send("plant/a/flow", "2");
+    d.advance(60);
+  }
+  EXPECT_TRUE(d.input_events("b/z1/window").empty());
+  EXPECT_TRUE(d.input_events("b/z1/wet").empty());
+  EXPECT_TRUE(d.events("input").empty());
+  const auto z1 = d.last_json("dm/zone/z1/state");
+  EXPECT_EQ(z1["band"], "safe");
+  EXPECT_EQ(z1["valve"], "open");
+  EXPECT_EQ(z1["alarm"]["active"], false);
+}
+
+TEST(Engine, BadButStillSendingStaysBad) {
+  engine_driver d(small_site());
+  d.readings(24, 50, 17, 16);
+  // The surface sensor sends junk every minute for ten minutes; the rest stay fresh.
+  for (int i = 0; i < 10; ++i) {
+    d.advance(60);
+    d.readings_without("b/z1/surface");
+    d.send("b/z1/surface", "err");
+  }
+  const auto inputs = d.input_events("b/z1/surface");
+  ASSERT_EQ(inputs.size(), 1u) << "bad once, never stale while it keeps sending";
+  EXPECT_EQ(inputs[0]["to"], "bad");
+  EXPECT_EQ(inputs[0]["fault"], "not_a_number");
+  // Its last good value is too old to use: the zone falls back to the supply.
+  EXPECT_EQ(d.last_json("dm/zone/z1/state")["margin_source"], "supply");
+  // It falls silent: stale stale_after_s after its last message.
+  for (int i = 0; i < 3; ++i) {
+    d.advance(60);
+    d.readings_without("b/z1/surface");
+  }
+  const auto later = d.input_events("b/z1/surface");
+  ASSERT_EQ(later.size(), 2u);
+  EXPECT_EQ(later[1]["from"], "bad");
+  EXPECT_EQ(later[1]["to"], "stale");
+  EXPECT_EQ(later[1]["bad_messages"], 10);
 }
 
 TEST(Engine, MinuteSamplesSummariseEachZone) {

@@ -1,6 +1,7 @@
 #pragma once
 // Helpers for the simulator's unit tests (test_sim_*.cpp):
 //  - the demo config (config/demo.yaml), as is or with text replaced, loaded by the project's loader;
+//  - the demo's scenarios (config/scenarios/*.yaml) read against it;
 //  - run_through_core: closes the simulator's loop through the decision core in-process, in
 //    lockstep on simulated time (no broker, no threads). The core takes each reading at its own
 //    time and ticks once per simulated second, as dewmargind does in event-time mode; whatever
@@ -10,13 +11,16 @@
 #include <fstream>
 #include <memory>
 #include <sstream>
+#include <stdexcept>
 #include <string>
 #include <utility>
 #include <vector>
 
 #include "dewmargin/config_loader.h"
 #include "dewmargin/engine.h"
+#include "dewmargin/tick_driver.h"
 #include "model/simulation.h"
+#include "scenario_file/scenario_loader.h"
 
 namespace dewmargin::sim::testing {
 
@@ -41,6 +45,31 @@ inline config_load_result load_demo(const std::vector<std::pair<std::string, std
   return load_config_text(replaced(demo_config_text(), edits), "demo.yaml");
 }
 
+inline std::string source_path(const std::string& relative) {
+  return std::string(DEWMARGIN_SOURCE_DIR) + "/" + relative;
+}
+
+// A building and a day read from a scenario file of the repository (e.g. "config/scenarios/short.yaml").
+struct day_to_play {
+  building house;
+  scenario day;
+};
+inline day_to_play scenario_from(const std::string& relative, const site_config& cfg,
+                                 const std::string& config_label = "config/demo.yaml") {
+  const auto r = load_scenario_file(source_path(relative), cfg, config_label);
+  if (!r.ok()) {
+    std::string text;
+    for (const auto& e : r.errors) text += e.to_string() + "\n";
+    throw std::runtime_error(relative + ": " + text);
+  }
+  return {*r.house, *r.day};
+}
+inline day_to_play demo_scenario(const std::string& name) {
+  const auto loaded = load_demo();
+  if (!loaded.ok()) throw std::runtime_error("config/demo.yaml: " + loaded.errors.front().to_string());
+  return scenario_from("config/scenarios/" + name + ".yaml", *loaded.config);
+}
+
 inline void run_through_core(simulation& sim, const site_config& cfg) {
   engine core(cfg);
   engine_output batch;
@@ -52,13 +81,12 @@ inline void run_through_core(simulation& sim, const site_config& cfg) {
   sim.begin(out);
   core.begin(sim.now(), restored_state{}, batch);
   route();
-  timestamp next_tick = sim.now() + std::chrono::seconds(1);
+  tick_driver ticks(sim.now());
   const auto deliver = [&](timestamp now) {
-    while (next_tick <= now) {
-      core.tick(next_tick, batch);
+    ticks.advance_to(now, [&](timestamp at) {
+      core.tick(at, batch);
       route();
-      next_tick += std::chrono::seconds(1);
-    }
+    });
     for (const auto& m : out) {
       core.on_message(m.topic, m.payload, now, batch, m.retained);
       route();

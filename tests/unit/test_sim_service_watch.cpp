@@ -20,7 +20,7 @@ std::string zone_state(const char* zone, const char* band, double margin_k, bool
 service_watch make_watch(double ack_after_s) {
   const auto loaded = testing::load_demo();
   EXPECT_TRUE(loaded.ok());
-  return service_watch(*loaded.config, ack_after_s, "sim-operator");
+  return service_watch(*loaded.config, ack_after_s, "sim-operator", parse_iso8601("2026-07-14").value());
 }
 
 TEST(SimServiceWatch, AcknowledgesEachNewAlarmAfterTheDelayOnce) {
@@ -102,6 +102,40 @@ TEST(SimServiceWatch, StatusTopicTellsWhetherTheServiceIsOnline) {
   EXPECT_TRUE(w.tally().online);
   w.on_message("dewmargin/status", R"({"state":"offline"})", 1.0);
   EXPECT_FALSE(w.tally().online);
+}
+
+TEST(SimServiceWatch, AlarmOnsetsAndTheServiceClockComeFromItsTimestamps) {
+  service_watch w = make_watch(300.0);
+  EXPECT_FALSE(w.service_time_s().has_value());
+  // A loop state: only its clock counts.
+  w.on_message("dewmargin/loop/slab-lobby/state", R"({"loop":"slab-lobby","ts":"2026-07-14T06:00:05Z"})",
+               6.0 * 3600 + 7);
+  ASSERT_TRUE(w.service_time_s().has_value());
+  EXPECT_DOUBLE_EQ(*w.service_time_s(), 6.0 * 3600 + 5);
+  // An alarm raised at the service's 06:10:00, heard by the simulator a little later.
+  w.on_message("dewmargin/events",
+               R"({"ts":"2026-07-14T06:10:00Z","zone":"g-lobby","kind":"band","from":"tight","to":"alarm",)"
+               R"("alarm":{"active":true,"acknowledged":false}})",
+               6.0 * 3600 + 615);
+  EXPECT_DOUBLE_EQ(*w.service_time_s(), 6.0 * 3600 + 600);
+  // Cleared, raised again at 06:20:00.
+  w.on_message("dewmargin/zone/g-lobby/state",
+               R"({"ts":"2026-07-14T06:15:00Z","zone":"g-lobby","band":"safe","margin_k":2.5,)"
+               R"("alarm":{"active":false,"acknowledged":true}})",
+               6.0 * 3600 + 900);
+  w.on_message("dewmargin/zone/g-lobby/state",
+               R"({"ts":"2026-07-14T06:20:00Z","zone":"g-lobby","band":"condensing","margin_k":-0.1,)"
+               R"("alarm":{"active":true,"acknowledged":false}})",
+               6.0 * 3600 + 1210);
+  const watched_zone& lobby = w.zones()[0];
+  ASSERT_EQ(lobby.id, "g-lobby");
+  EXPECT_EQ(lobby.alarm_onsets_s, (std::vector<double>{6.0 * 3600 + 600, 6.0 * 3600 + 1200}));
+  // A retained state of an earlier run, stamped later than the simulator's clock, is not the service's clock.
+  w.on_message("dewmargin/zone/l3-north-open/state",
+               R"({"ts":"2026-07-14T19:00:00Z","zone":"l3-north-open","band":"safe","margin_k":3,)"
+               R"("alarm":{"active":false,"acknowledged":true}})",
+               6.0 * 3600 + 1220);
+  EXPECT_DOUBLE_EQ(*w.service_time_s(), 6.0 * 3600 + 1200);
 }
 
 }  // namespace

@@ -10,7 +10,7 @@ namespace {
 TEST(SimSiteBinding, DemoConfigBindsAndListsEveryCommandTopic) {
   const auto loaded = testing::load_demo();
   ASSERT_TRUE(loaded.ok());
-  const auto bound = site_binding::bind(*loaded.config, quayside_four());
+  const auto bound = site_binding::bind(*loaded.config, testing::demo_scenario("short").house);
   ASSERT_TRUE(bound.ok()) << bound.err().message;
   // 10 valves, 3 setpoints, 1 dew-point request.
   EXPECT_EQ(bound.value().command_topics().size(), 14u);
@@ -34,13 +34,14 @@ TEST(SimSiteBinding, MismatchesAreAllNamed) {
        "zone g-lobby is on loop ceiling-north in the config but on slab-lobby in the building"},
       {"dehumidifier renamed",
        {{"id: doas-roof", "id: doas-east"}},
-       "config dehumidifier doas-east is not in building quayside-four (it has doas-roof)"},
+       "dehumidifier doas-roof of building quayside-four is not in the config; config dehumidifier doas-east is not "
+       "in building quayside-four"},
   };
   for (const auto& c : cases) {
     SCOPED_TRACE(c.name);
     const auto loaded = testing::load_demo(c.edits);
     ASSERT_TRUE(loaded.ok()) << loaded.errors.front().to_string();
-    const auto bound = site_binding::bind(*loaded.config, quayside_four());
+    const auto bound = site_binding::bind(*loaded.config, testing::demo_scenario("short").house);
     ASSERT_FALSE(bound.ok());
     EXPECT_EQ(bound.err().code, error_code::invalid_argument);
     EXPECT_EQ(bound.err().message, c.message);
@@ -50,7 +51,7 @@ TEST(SimSiteBinding, MismatchesAreAllNamed) {
 TEST(SimSiteBinding, DecodesPlantCommandsAndNamesBadOnes) {
   const auto loaded = testing::load_demo();
   ASSERT_TRUE(loaded.ok());
-  const auto bound = site_binding::bind(*loaded.config, quayside_four());
+  const auto bound = site_binding::bind(*loaded.config, testing::demo_scenario("short").house);
   ASSERT_TRUE(bound.ok());
   const site_binding& b = bound.value();
 

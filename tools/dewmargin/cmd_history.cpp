@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "commands.h"
+#include "dewmargin/event_kind.h"
 #include "dewmargin/history_format.h"
 #include "dewmargin/history_reader.h"
 #include "dewmargin/timestamp.h"
@@ -18,18 +19,6 @@ namespace dewmargin::cli {
 namespace {
 
 constexpr std::string_view k_prog = "dewmargin history: ";
-constexpr std::array<std::string_view, 10> k_event_kinds = {"band",     "ack",        "shelve", "unshelve", "valve",
-                                                            "setpoint", "dehumidify", "input",  "rejected", "service"};
-
-std::string kinds_list() {
-  std::string s;
-  for (const auto k : k_event_kinds) {
-    if (!s.empty()) s += ", ";
-    s += k;
-  }
-  return s;
-}
-
 // A bare date given to --until means "up to the end of that day".
 bool is_bare_date(std::string_view text) { return text.size() == 10; }
 
@@ -68,8 +57,8 @@ int run_history(const history_options& o, std::ostream& out, std::ostream& err) 
   event_filter filter;
   if (!o.zone.empty()) filter.subject_id = o.zone;
   if (!o.kind.empty()) {
-    if (std::find(k_event_kinds.begin(), k_event_kinds.end(), o.kind) == k_event_kinds.end()) {
-      err << k_prog << "--kind '" << o.kind << "' is not an event kind (" << kinds_list() << ")\n";
+    if (!parse_event_kind(o.kind)) {
+      err << k_prog << "--kind '" << o.kind << "' is not an event kind (" << event_kind_list() << ")\n";
       return k_exit_usage;
     }
     filter.kind = o.kind;

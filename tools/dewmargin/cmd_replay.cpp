@@ -8,6 +8,7 @@
 #include "dewmargin/config_loader.h"
 #include "dewmargin/engine.h"
 #include "dewmargin/replay_csv.h"
+#include "dewmargin/tick_driver.h"
 
 namespace dewmargin::cli {
 namespace {
@@ -52,22 +53,19 @@ int run_replay(const replay_options& o, std::ostream& out, std::ostream& err) {
   core.begin(t0, restored_state{}, batch);
   print(batch, o.states, out);
 
-  // The periodic tick advances with the readings' time, once per simulated second.
-  timestamp next_tick = t0 + std::chrono::seconds(1);
-  const auto run_ticks_until = [&](timestamp t) {
-    while (next_tick <= t) {
-      core.tick(next_tick, batch);
-      print(batch, o.states, out);
-      next_tick += std::chrono::seconds(1);
-    }
+  // The periodic tick follows the readings' time, as the service's does in event-time mode.
+  tick_driver ticks(t0);
+  const auto tick = [&](timestamp at) {
+    core.tick(at, batch);
+    print(batch, o.states, out);
   };
   for (const auto& row : rows.value()) {
-    run_ticks_until(row.ts);
+    ticks.advance_to(row.ts, tick);
     core.on_message(row.topic, row.payload, row.ts, batch);
     print(batch, o.states, out);
   }
   const timestamp last = rows.value().empty() ? t0 : std::max(rows.value().back().ts, t0);
-  run_ticks_until(last + std::chrono::milliseconds(static_cast<std::int64_t>(o.tail_s * 1000.0)));
+  ticks.advance_to(last + std::chrono::milliseconds(static_cast<std::int64_t>(o.tail_s * 1000.0)), tick);
   out.flush();
   if (!out) {
     err << "dewmargin replay: cannot write the output\n";

@@ -5,6 +5,7 @@
 
 #include "commands.h"
 #include "dewmargin/caution.h"
+#include "dewmargin/event_kind.h"
 #include "dewmargin/version.h"
 #include "watch/watch_command.h"
 
@@ -76,9 +77,7 @@ int main(int argc, char** argv) {
   history->add_option("--since", hist.since_text, "Only events at or after TIME")->type_name("TIME");
   history->add_option("--until", hist.until_text, "Only events before TIME; a bare date means up to the end of that day")
       ->type_name("TIME");
-  history->add_option("--kind", hist.kind,
-                      "Only events of this kind: band, ack, shelve, unshelve, valve, setpoint, dehumidify, input, "
-                      "rejected, service")
+  history->add_option("--kind", hist.kind, "Only events of this kind: " + dewmargin::event_kind_list())
       ->type_name("KIND");
   history->add_option("--format", hist.format, "table (default), csv or json")->type_name("FORMAT");
   history->footer(std::string(

@@ -38,26 +38,34 @@ const char* command_verb_name(command_verb v) {
   return "ack";
 }
 
+std::optional<command_verb> parse_command_verb(std::string_view verb_text) {
+  for (command_verb v : {command_verb::ack, command_verb::shelve, command_verb::unshelve}) {
+    if (verb_text == command_verb_name(v)) return v;
+  }
+  return std::nullopt;
+}
+
 result<operator_command> parse_operator_command(std::string_view verb_text, std::string_view payload,
                                                 std::string& zone_out) {
   operator_command cmd;
+  // Checked before parsing: a megabyte of JSON is not worth reading to reject it.
+  if (payload.size() > k_max_command_bytes) {
+    return make_error(error_code::out_of_range, "command too large (" + std::to_string(payload.size()) +
+                                                    " bytes, at most " + std::to_string(k_max_command_bytes) + ")");
+  }
   const nlohmann::json doc = nlohmann::json::parse(payload.begin(), payload.end(), nullptr, false);
   // The zone is taken first so that every rejection, also of an unknown verb, can name it.
   if (doc.is_object() && doc.contains("zone") && doc["zone"].is_string()) {
     zone_out = bounded(doc["zone"].get<std::string>());
   }
 
-  if (verb_text == "ack") {
-    cmd.verb = command_verb::ack;
-  } else if (verb_text == "shelve") {
-    cmd.verb = command_verb::shelve;
-  } else if (verb_text == "unshelve") {
-    cmd.verb = command_verb::unshelve;
-  } else {
+  const auto verb = parse_command_verb(verb_text);
+  if (!verb) {
     return make_error(
         error_code::invalid_argument,
         "unknown command '" + bounded(std::string(verb_text), k_max_verb_echo) + "' (ack, shelve, unshelve)");
   }
+  cmd.verb = *verb;
 
   if (doc.is_discarded()) return make_error(error_code::parse_error, "payload is not valid JSON");
   if (!doc.is_object()) return make_error(error_code::parse_error, "payload must be a JSON object");

@@ -3,7 +3,6 @@
 #include <mqtt/async_client.h>
 
 #include <algorithm>
-#include <cmath>
 #include <condition_variable>
 #include <cstdint>
 #include <exception>
@@ -13,16 +12,14 @@
 #include <utility>
 
 #include "dewmargin/secret_file.h"
+#include "link_client_options.h"
 #include "link_options_check.h"
 #include "tcp_probe.h"
 
 namespace dewmargin {
 namespace {
 
-constexpr int k_qos = 1;
-// The library buffers the online status and subscribe requests beside our own publishes:
-// its buffer and in-flight limits get this much room above max_in_flight.
-constexpr int k_library_headroom = 16;
+using detail::k_qos;
 // Slice in which the sender thread looks at the stop flag while it waits on the connect.
 constexpr std::chrono::milliseconds k_wait_slice{100};
 // After a refused send the sender waits this long (or for a delivery or connection event).
@@ -87,7 +84,9 @@ class forwarding_listener final : public ::mqtt::iaction_listener {
   handler on_failure_;
 };
 
-enum class link_phase { created, running, draining, closed };
+// The link's state machine, documented in mqtt_link.h ("States").
+enum class link_phase { created, running, draining, stopping, closed };
+enum class session_phase { down, subscribing, sending, paused };
 
 }  // namespace
 
@@ -113,49 +112,14 @@ struct mqtt_link::impl {
   // ---- set-up -------------------------------------------------------------------------
 
   std::string build(const std::string& password) {
-    const bool tls = starts_with(options_.broker.uri, "ssl://");
-
-    ::mqtt::create_options create(MQTTVERSION_3_1_1);
-    create.set_send_while_disconnected(false);  // the outbox buffers; a refused send goes back to it
-    create.set_max_buffered_messages(static_cast<int>(options_.max_in_flight) + k_library_headroom);
     try {
       // No persistence object: Paho's file persistence would write into the working directory.
-      client_ = std::make_unique<::mqtt::async_client>(options_.broker.uri, options_.broker.client_id, create, nullptr);
+      client_ = std::make_unique<::mqtt::async_client>(options_.broker.uri, options_.broker.client_id,
+                                                       detail::make_create_options(options_), nullptr);
     } catch (const ::mqtt::exception& e) {
       return "broker.uri " + options_.broker.uri + ": the client library refused it: " + e.what();
     }
-
-    connect_options_.set_mqtt_version(MQTTVERSION_3_1_1);
-    connect_options_.set_clean_session(false);
-    connect_options_.set_keep_alive_interval(static_cast<int>(std::lround(options_.broker.keepalive_s)));
-    connect_options_.set_connect_timeout(static_cast<int>(options_.connect_timeout.count()));
-    connect_options_.set_automatic_reconnect(static_cast<int>(options_.reconnect_min.count()),
-                                             static_cast<int>(options_.reconnect_max.count()));
-    connect_options_.set_max_inflight(static_cast<int>(options_.max_in_flight) + k_library_headroom);
-    if (!options_.status_topic.empty()) {
-      connect_options_.set_will(
-          ::mqtt::will_options(options_.status_topic, options_.offline_will_payload, k_qos, true));
-    }
-    if (!options_.broker.username.empty()) {
-      connect_options_.set_user_name(options_.broker.username);
-    }
-    if (!password.empty()) {
-      connect_options_.set_password(password);
-    }
-    if (tls) {
-      ::mqtt::ssl_options ssl;
-      if (options_.broker.tls) {
-        const tls_config& t = *options_.broker.tls;
-        if (!t.ca_file.empty()) ssl.set_trust_store(t.ca_file);
-        if (!t.cert_file.empty()) ssl.set_key_store(t.cert_file);
-        if (!t.key_file.empty()) ssl.set_private_key(t.key_file);
-      }
-      ssl.set_enable_server_cert_auth(true);  // the broker's chain must verify...
-      ssl.set_verify(true);                   // ...and its name must match the host in the URI
-      // No ssl.set_error_handler(): connect() copies the options and the C library keeps a
-      // pointer into that copy, which is gone when the handler runs (found by ASan).
-      connect_options_.set_ssl(std::move(ssl));
-    }
+    connect_options_ = detail::make_connect_options(options_, password);
 
     client_->set_message_callback(
         [this](::mqtt::const_message_ptr m) { run_handler("message", [&] { on_message(m); }); });
@@ -211,18 +175,18 @@ struct mqtt_link::impl {
       return true;
     }
     std::lock_guard<std::mutex> lock(mutex_);
-    inbound_drop_reported_ = false;  // the queue ran empty: report the next overflow again
+    reported_.inbound_drop = false;  // the queue ran empty: report the next overflow again
     return false;
   }
 
   bool connected() const {
     std::lock_guard<std::mutex> lock(mutex_);
-    return connected_;
+    return session_ != session_phase::down;
   }
 
   bool ready() const {
     std::lock_guard<std::mutex> lock(mutex_);
-    return connected_ && session_ready_;
+    return session_ == session_phase::sending || session_ == session_phase::paused;
   }
 
   std::string last_connect_error() const {
@@ -259,7 +223,7 @@ struct mqtt_link::impl {
     bool was_running = false;
     {
       std::lock_guard<std::mutex> lock(mutex_);
-      if (phase_ == link_phase::draining || phase_ == link_phase::closed) {
+      if (phase_ != link_phase::created && phase_ != link_phase::running) {
         return;
       }
       was_running = phase_ == link_phase::running;
@@ -276,7 +240,7 @@ struct mqtt_link::impl {
         std::unique_lock<std::mutex> lock(mutex_);
         changed_.wait_until(lock, deadline, [&] { return box_.empty(); });
         undelivered = box_.size();
-        stop_requested_ = true;
+        phase_ = link_phase::stopping;
       }
       changed_.notify_all();
       sender_.join();
@@ -298,7 +262,7 @@ struct mqtt_link::impl {
     {
       // No handler may run once the client is gone: close the gate, wait for those inside.
       std::unique_lock<std::mutex> lock(mutex_);
-      gate_closed_ = true;
+      phase_ = link_phase::closed;
       if (!handlers_idle_.wait_for(lock, k_handler_drain, [&] { return handlers_active_ == 0; })) {
         lock.unlock();
         report(link_report_level::error, "a client library handler did not return within 2 s at shutdown");
@@ -314,9 +278,7 @@ struct mqtt_link::impl {
     }
     {
       std::lock_guard<std::mutex> lock(mutex_);
-      phase_ = link_phase::closed;
-      connected_ = false;
-      session_ready_ = false;
+      session_ = session_phase::down;
     }
     if (was_running) {
       report(
@@ -336,17 +298,17 @@ struct mqtt_link::impl {
       {
         std::unique_lock<std::mutex> lock(mutex_);
         const auto can_send = [&] {
-          return session_ready_ && !send_paused_ && box_.pending() > 0 && box_.in_flight() < options_.max_in_flight;
+          return session_ == session_phase::sending && box_.pending() > 0 && box_.in_flight() < options_.max_in_flight;
         };
-        while (!stop_requested_ && !can_send()) {
-          if (send_paused_) {
+        while (!stop_requested_locked() && !can_send()) {
+          if (session_ == session_phase::paused) {
             changed_.wait_for(lock, k_send_retry_pause);
-            send_paused_ = false;
+            if (session_ == session_phase::paused) session_ = session_phase::sending;
           } else {
             changed_.wait(lock);
           }
         }
-        if (stop_requested_) {
+        if (stop_requested_locked()) {
           return;
         }
         batch = box_.take_next_to_send(options_.max_in_flight);
@@ -363,7 +325,7 @@ struct mqtt_link::impl {
     while (true) {
       {
         std::lock_guard<std::mutex> lock(mutex_);
-        if (stop_requested_) {
+        if (stop_requested_locked()) {
           return false;
         }
         if (connections_ > 0) {
@@ -402,7 +364,7 @@ struct mqtt_link::impl {
                                              std::to_string(backoff.count()) + " s");
       {
         std::unique_lock<std::mutex> lock(mutex_);
-        changed_.wait_for(lock, backoff, [&] { return stop_requested_ || connections_ > 0; });
+        changed_.wait_for(lock, backoff, [&] { return stop_requested_locked() || connections_ > 0; });
       }
       backoff = std::min(backoff * 2, options_.reconnect_max);
     }
@@ -431,8 +393,10 @@ struct mqtt_link::impl {
 
   bool stopping() const {
     std::lock_guard<std::mutex> lock(mutex_);
-    return stop_requested_;
+    return stop_requested_locked();
   }
+
+  bool stop_requested_locked() const { return phase_ == link_phase::stopping || phase_ == link_phase::closed; }
 
   void send_batch(const std::vector<outbox_entry>& batch) {
     for (std::size_t i = 0; i < batch.size(); ++i) {
@@ -461,9 +425,9 @@ struct mqtt_link::impl {
             (void)box_.on_send_failed(batch[j].id);
           }
           ++send_failures_;
-          send_paused_ = true;
-          first_in_connection = !send_failure_reported_;
-          send_failure_reported_ = true;
+          if (session_ == session_phase::sending) session_ = session_phase::paused;
+          first_in_connection = !reported_.send_failure;
+          reported_.send_failure = true;
         }
         if (first_in_connection) {
           report(link_report_level::warning,
@@ -481,7 +445,7 @@ struct mqtt_link::impl {
    public:
     explicit handler_scope(impl& owner) : owner_(owner) {
       std::lock_guard<std::mutex> lock(owner_.mutex_);
-      entered_ = !owner_.gate_closed_;
+      entered_ = owner_.phase_ != link_phase::closed;
       if (entered_) ++owner_.handlers_active_;
     }
     ~handler_scope() {
@@ -525,8 +489,8 @@ struct mqtt_link::impl {
     bool first = false;
     {
       std::lock_guard<std::mutex> lock(mutex_);
-      first = !inbound_drop_reported_;
-      inbound_drop_reported_ = true;
+      first = !reported_.inbound_drop;
+      reported_.inbound_drop = true;
     }
     if (first) {
       report(link_report_level::warning, "inbound queue full (" + std::to_string(options_.inbound_capacity) +
@@ -540,10 +504,8 @@ struct mqtt_link::impl {
     std::size_t queued_again = 0;
     {
       std::lock_guard<std::mutex> lock(mutex_);
-      connected_ = true;
-      session_ready_ = false;
-      send_paused_ = false;
-      send_failure_reported_ = false;
+      session_ = session_phase::subscribing;
+      reported_.send_failure = false;
       last_connect_error_.clear();
       epoch = ++epoch_;
       connection_number = ++connections_;
@@ -604,7 +566,7 @@ struct mqtt_link::impl {
     bool announce = false;
     {
       std::lock_guard<std::mutex> lock(mutex_);
-      if (epoch != epoch_ || !connected_) {
+      if (epoch != epoch_ || session_ == session_phase::down) {
         return;  // an answer from an older connection
       }
       announce = phase_ == link_phase::running && !options_.status_topic.empty();
@@ -619,8 +581,8 @@ struct mqtt_link::impl {
     }
     {
       std::lock_guard<std::mutex> lock(mutex_);
-      if (epoch == epoch_ && connected_) {
-        session_ready_ = true;
+      if (epoch == epoch_ && session_ == session_phase::subscribing) {
+        session_ = session_phase::sending;
       }
     }
     changed_.notify_all();
@@ -635,8 +597,7 @@ struct mqtt_link::impl {
     std::size_t returned = 0;
     {
       std::lock_guard<std::mutex> lock(mutex_);
-      connected_ = false;
-      session_ready_ = false;
+      session_ = session_phase::down;
       ++connection_losses_;
       returned = box_.on_connection_lost();
     }
@@ -650,9 +611,11 @@ struct mqtt_link::impl {
     {
       std::lock_guard<std::mutex> lock(mutex_);
       (void)box_.on_delivered(from_context(tok.get_user_context()));
-      send_paused_ = false;
+      if (session_ == session_phase::paused) {
+        session_ = session_phase::sending;
+      }
       if (box_.empty()) {
-        outbox_drop_reported_ = false;
+        reported_.outbox_drop = false;
       }
     }
     changed_.notify_all();
@@ -682,12 +645,12 @@ struct mqtt_link::impl {
     {
       std::lock_guard<std::mutex> lock(mutex_);
       dropped = box_.dropped_total();
-      if (dropped == outbox_drops_seen_ || outbox_drop_reported_) {
+      if (dropped == outbox_drops_seen_ || reported_.outbox_drop) {
         outbox_drops_seen_ = dropped;
         return;
       }
       outbox_drops_seen_ = dropped;
-      outbox_drop_reported_ = true;
+      reported_.outbox_drop = true;
     }
     report(link_report_level::warning, "outbox full (" + std::to_string(options_.outbox_capacity) +
                                            " messages): dropping the least important (events first), " +
@@ -714,16 +677,18 @@ struct mqtt_link::impl {
   std::condition_variable handlers_idle_;  // handlers_active_ fell to 0
   outbox box_;
   std::unordered_map<std::string, outbound_message> last_retained_;  // topic -> newest retained
+  // The state machine (see mqtt_link.h): where the link is in its life, and the session
+  // on the current connection.
   link_phase phase_ = link_phase::created;
-  bool stop_requested_ = false;
-  bool connected_ = false;
-  bool session_ready_ = false;
-  bool send_paused_ = false;
-  bool send_failure_reported_ = false;
-  bool inbound_drop_reported_ = false;
-  bool outbox_drop_reported_ = false;
+  session_phase session_ = session_phase::down;
+  // Warnings given once per episode, not states: set when reported, cleared when the
+  // episode ends (a new connection; the inbound queue ran empty; the outbox drained).
+  struct {
+    bool send_failure = false;
+    bool inbound_drop = false;
+    bool outbox_drop = false;
+  } reported_;
   std::uint64_t outbox_drops_seen_ = 0;
-  bool gate_closed_ = false;
   int handlers_active_ = 0;
   std::uint64_t epoch_ = 0;
   std::uint64_t connections_ = 0;

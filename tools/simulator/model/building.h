@@ -1,107 +1,105 @@
 #pragma once
-// The simulated building: an invented four-storey office on a quay in a humid coastal
-// climate ("quayside-four"). Ten zones: chilled metal ceiling panels on two loops (north and
-// south façade), a cooled slab floor in the lobby on a third loop, and one dedicated
-// outdoor-air unit (DOAS) on the roof that dries the ventilation air for every zone.
+// The simulated building, as read from a scenario file (docs/scenarios.md): zones with their
+// chilled surface, loops, dehumidifiers (dedicated outdoor-air units). Ids are those of the
+// service config the simulator runs against. Every field is resolved: the scenario reader
+// fills in the defaults below, so the physics never looks a default up.
 //
 // clang-format off
-// Every main constant of the model, with its source. "from memory": a value recalled, not
-// looked up; "common practice, no source": a usual modelling choice; "invented": demo data.
+// Physical constants of the model, with their source. "from memory": a value recalled, not
+// looked up; "common practice, no source": a usual modelling choice.
 //
 // | constant                                   | value                    | source |
 // |--------------------------------------------|--------------------------|--------|
-// | occupant latent gain, office work          | 55 W ≈ 81 g/h per person | ASHRAE Handbook—Fundamentals, ch. 18, Table 1, "moderately active office work" (from memory) |
-// | occupant sensible gain, office work        | 75 W per person          | same table (from memory) |
 // | latent heat of vaporisation at 25 °C       | 2.442 MJ/kg              | steam tables (from memory) |
 // | air density, specific heat                 | 1.2 kg/m³, 1006 J/(kg K) | standard air, ASHRAE Fundamentals ch. 1 (from memory) |
 // | water density, specific heat (loops)       | 998 kg/m³, 4186 J/(kg K) | near 15–20 °C (from memory) |
-// | chilled ceiling surface–room coefficient   | 10.8 W/(m² K)            | EN 1264-5 / ISO 11855 total heat exchange coefficient, cooling ceiling (from memory) |
-// | cooled floor surface–room coefficient      | 7.0 W/(m² K)             | same standards, cooling floor (from memory) |
-// | panel surface: share of water temperature  | 0.85 metal, 0.55 slab    | common practice, no source (a metal panel sits close to its water, a screed does not) |
-// | surface time constant, valve open          | 3 min metal, 90 min slab | common practice, no source |
-// | surface time constant, valve closed        | 12 min metal, 4 h slab   | common practice, no source (stagnant water and panel mass warm to the room) |
-// | supply-water plant lag                     | 4 min                    | common practice, no source (mixing valve and pipe transport) |
-// | DOAS coil lag                              | 5 min                    | common practice, no source |
-// | ventilation air                            | 10 L/s per design person | common European office design value (from memory) |
-// | DOAS design supply dew point, air temp.    | 11 °C, 18 °C             | invented design (typical for chilled-ceiling buildings, from memory) |
-// | design supply water                        | 16 °C ceilings, 19 °C slab | invented design (typical, from memory) |
-// | room temperature control (the BMS's own)   | 23–25 °C proportional band | common practice, no source (scales the panel's water share; the service's valve is a separate on/off valve) |
-// | lighting and equipment                     | 12 W/m² occupied, 3 W/m² empty | common practice, no source |
 // | effective heat capacity of a zone          | 8 × its air's            | common practice, no source (furniture, linings) |
+// | coldest supply water the plant can make    | 6 °C                     | common practice, no source |
 // | moisture buffering by furnishings          | none                     | modelling choice: humidity moves as fast as the air allows (harder for the service) |
-// | infiltration                               | 0.15–0.5 air changes per hour | invented, leaky coastal building |
-// | propped lobby door                         | +1.5 m³/s of outdoor air | invented (a wide entrance door propped open in a sea breeze) |
 // | condensation removing moisture from air    | not modelled             | modelling choice: slightly overstates humidity while surfaces are wet |
+//
+// Defaults of the scenario keys (their sources) are in building.cpp and docs/scenarios.md.
 // clang-format on
+#include <optional>
 #include <string>
 #include <vector>
 
+#include "dewmargin/config.h"
+#include "model/time_series.h"
+
 namespace dewmargin::sim {
 
-inline constexpr double k_latent_gain_per_person_w = 55.0;
-inline constexpr double k_sensible_gain_per_person_w = 75.0;
 inline constexpr double k_latent_heat_j_per_kg = 2.442e6;
 inline constexpr double k_air_density_kg_m3 = 1.2;
 inline constexpr double k_air_specific_heat_j_kgk = 1006.0;
 inline constexpr double k_water_density_kg_m3 = 998.0;
 inline constexpr double k_water_specific_heat_j_kgk = 4186.0;
 inline constexpr double k_heat_capacity_multiplier = 8.0;
-inline constexpr double k_equipment_occupied_w_m2 = 12.0;
-inline constexpr double k_equipment_empty_w_m2 = 3.0;
-// The room controller throttles the panel's water flow: full above 25 °C, none below 23 °C.
-inline constexpr double k_room_control_from_c = 23.0;
-inline constexpr double k_room_control_band_k = 2.0;
+inline constexpr double k_min_supply_water_c = 6.0;
 
-enum class surface_kind { metal_ceiling, slab_floor };
+enum class surface_kind { ceiling_panel, slab, wall_panel };
+const char* surface_kind_name(surface_kind k);
 
 struct surface_physics {
   double heat_transfer_w_m2k;  // surface ↔ room, convective + radiative
-  double water_share;          // steady surface = share·T_water + (1 − share)·T_air, valve open
-  double tau_open_s;
-  double tau_closed_s;
+  double water_share;          // steady surface = share·T_water + (1 − share)·T_air, full flow
+  double tau_open_s;           // time constant with full flow
+  double tau_closed_s;         // with no flow (valve closed, or the room controller satisfied)
 };
 
-surface_physics physics_of(surface_kind kind);
+// Defaults by surface kind (see building.cpp for the sources).
+surface_physics default_physics(surface_kind kind);
 
 struct zone_physics {
-  std::string id;    // must match a zone id of the shared config
-  std::string loop;  // loop id
-  double floor_m2 = 0.0;
-  double height_m = 0.0;
-  double surface_m2 = 0.0;  // chilled panel (or slab) area
-  surface_kind surface = surface_kind::metal_ceiling;
+  std::string id;            // a zone id of the service config
+  std::string loop;          // its loop (from the config)
+  std::string dehumidifier;  // the unit whose air it gets (from the config); empty: untreated outdoor air
+  double floor_m2 = 50.0;
+  double height_m = 2.8;
+  double surface_m2 = 20.0;  // chilled panel (or slab) area
+  surface_kind surface = surface_kind::ceiling_panel;
+  surface_physics physics = default_physics(surface_kind::ceiling_panel);
   double design_people = 0.0;
-  double supply_air_l_s = 0.0;  // DOAS air delivered to the zone
-  double infiltration_ach = 0.0;
-  double envelope_ua_w_k = 0.0;  // conduction through façade and roof
-  double solar_peak_w_m2 = 0.0;  // per m² floor, at solar_peak_hour
-  double solar_peak_hour = 13.0;
-  double extra_moisture_g_h = 0.0;  // kettles, dishwasher (pantry), over the lunch hours
+  time_series occupancy = time_series::constant(0.0);  // share of design_people present, 0..1
+  double latent_w_per_person = 55.0;
+  double sensible_w_per_person = 75.0;
+  double ventilation_l_s = 0.0;  // air from its dehumidifier (or outdoors)
+  double infiltration_ach = 0.2;
+  double envelope_ua_w_k = 50.0;  // conduction through façade and roof
+  double solar_peak_w_m2 = 10.0;  // per m² floor, at solar_peak_s
+  double solar_peak_s = 13.0 * 3600.0;
+  double occupied_gain_w_m2 = 12.0;  // lights and equipment at full occupancy
+  double empty_gain_w_m2 = 3.0;      // and with nobody in
+  time_series moisture_g_h;          // other moisture sources (kettles, cooking, showers)
+  double cooling_from_c = 23.0;      // the room controller: no panel flow below this air temperature,
+  double cooling_band_k = 2.0;       // full flow this much above it
 };
 
 struct loop_physics {
-  std::string id;  // must match a loop id of the shared config
+  std::string id;  // a loop id of the service config
   double design_supply_c = 16.0;
   double flow_l_s = 1.0;  // constant-speed pump with a bypass
   double plant_tau_s = 240.0;
 };
 
-struct doas_physics {
-  std::string id;  // must match a dehumidifier id of the shared config
+struct dehumidifier_physics {
+  std::string id;  // a dehumidifier id of the service config
   double design_dew_point_c = 11.0;
   double min_dew_point_c = 8.0;  // the driest the coil can make the air
   double supply_air_c = 18.0;    // after reheat, while the coil works
   double coil_tau_s = 300.0;
+  std::optional<double> capacity_kg_h;  // moisture the coil can remove; none: not limited
+  // Optional extra sensors the simulator publishes for the unit (not read by the service
+  // config schema of today): its fault switch and its measured supply-air dew point.
+  std::optional<input_config> fault;
+  std::optional<input_config> supply_dew_point;
 };
 
 struct building {
   std::string name;
   std::vector<zone_physics> zones;
   std::vector<loop_physics> loops;
-  doas_physics doas;
+  std::vector<dehumidifier_physics> dehumidifiers;
 };
-
-// The demo building described above.
-building quayside_four();
 
 }  // namespace dewmargin::sim

@@ -6,6 +6,7 @@
 #include <sstream>
 
 #include "model/moist_air.h"
+#include "model/verdict.h"
 
 namespace dewmargin::sim {
 namespace {
@@ -64,29 +65,29 @@ std::string status_line(const simulation& sim) {
   return os.str();
 }
 
-std::string summary_text(const simulation& sim) {
+namespace {
+
+std::string day_header(const simulation& sim, const char* what) {
   std::ostringstream os;
   const auto& sc = sim.script();
-  const auto& plant = sim.plant();
   os << "== simulated day '" << sc.name << "' " << sc.date << " " << clock_text(sc.start_s) << "-"
-     << clock_text(sc.end_s) << " UTC, building " << plant.layout().name << ", "
-     << (sim.options().with_service ? "supervised by the service" : "baseline without the service") << "\n";
-  os << "condensation (ground truth: minutes a chilled surface was colder than its room's dew point)\n";
-  os << "  total " << fixed(sim.truth().total_condensing_min(), 1) << " zone-min\n";
-  for (const auto& z : sim.truth().zones()) {
-    char line[160];
-    std::snprintf(line, sizeof line, "  %-18s %7.1f min   lowest margin %+6.2f K at %s\n", z.zone.c_str(),
-                  z.condensing_s / 60.0, z.min_margin_k, clock_text(z.min_margin_at_s).c_str());
-    os << line;
-  }
-  if (!sim.truth().condensing_min_by_incident().empty()) {
-    os << "  while:";
-    for (const auto& kv : sim.truth().condensing_min_by_incident()) {
-      os << " " << kv.first << " " << fixed(kv.second, 1);
-    }
-    os << " (zone-min)\n";
-  }
-  if (!sim.options().with_service) return os.str();
+     << clock_text(sc.end_s) << " UTC, building " << sim.plant().layout().name << ", " << what << "\n";
+  return os.str();
+}
+
+std::string wet_while(const simulation& sim, const char* label) {
+  if (sim.truth().condensing_min_by_incident().empty()) return {};
+  std::ostringstream os;
+  os << "  " << label << " wet while:";
+  for (const auto& kv : sim.truth().condensing_min_by_incident()) os << " " << kv.first << " " << fixed(kv.second, 1);
+  os << " (zone-min)\n";
+  return os.str();
+}
+
+}  // namespace
+
+std::string service_text(const simulation& sim) {
+  std::ostringstream os;
   const auto& t = sim.watch().tally();
   os << "service (its events on MQTT): alarms raised " << t.alarms_raised << ", acknowledged " << t.acknowledged;
   if (sim.options().ack_after_s > 0) {
@@ -101,41 +102,69 @@ std::string summary_text(const simulation& sim) {
   for (const auto& kv : c.setpoint_by_loop) {
     os << " " << kv.first << " " << fixed(kv.second.min, 1) << "-" << fixed(kv.second.max, 1) << " °C;";
   }
-  if (c.dew_point_request.seen) {
-    os << " " << plant.layout().doas.id << " dew point " << fixed(c.dew_point_request.min, 1) << "-"
-       << fixed(c.dew_point_request.max, 1) << " °C;";
+  for (const auto& kv : c.dew_point_request_by_unit) {
+    os << " " << kv.first << " dew point " << fixed(kv.second.min, 1) << "-" << fixed(kv.second.max, 1) << " °C;";
   }
   os << " valves " << c.valve_closings << " closed, " << c.valve_openings << " opened";
   if (c.bad_commands > 0) os << "; " << c.bad_commands << " unreadable (last: " << c.last_bad_command << ")";
   os << "\n";
+  const auto& o = sim.outage();
+  if (o.readings_dropped > 0 || o.messages_missed > 0) {
+    os << "broker outage: " << o.readings_dropped << " messages not published, " << o.messages_missed
+       << " from the service not heard\n";
+  }
   return os.str();
+}
+
+std::string summary_text(const simulation& sim) {
+  const bool service = sim.options().with_service;
+  std::string text = day_header(sim, service ? "supervised by the service" : "baseline without the service");
+  text += verdict_table(verdict_of(sim));
+  text += wet_while(sim, service ? "with the service" : "without the service");
+  if (service) text += service_text(sim);
+  return text;
+}
+
+std::string compare_text(const simulation& baseline, const simulation& supervised) {
+  std::string text = day_header(supervised, "without and with the service");
+  text += compare_table(verdict_of(baseline), verdict_of(supervised));
+  text += wet_while(baseline, "without the service");
+  text += wet_while(supervised, "with the service");
+  text += service_text(supervised);
+  return text;
 }
 
 std::string trace_header() {
   return "time,zone,air_c,rh_pct,dew_point_c,surface_c,margin_k,valve,people,supply_c,setpoint_c,"
-         "outdoor_c,outdoor_dew_point_c,doas_dew_point_c,doas_request_c\n";
+         "outdoor_c,outdoor_dew_point_c,supply_air_dew_point_c,dew_point_request_c\n";
 }
 
 std::string trace_rows(const simulation& sim) {
   std::ostringstream os;
   const auto& plant = sim.plant();
   const auto out = plant.outdoor();
-  const auto& doas = plant.doas();
   const std::string t = format_iso8601_utc(sim.now());
   for (std::size_t i = 0; i < plant.zones().size(); ++i) {
     const zone_state& z = plant.zones()[i];
     const loop_state& l = plant.loops()[plant.loop_of(i)];
+    // The zone's supply air: its dehumidifier's, or outdoor air (no request) where none serves it.
+    double supply_dp_c = out.dew_point_c;
+    double request_c = 0.0;
+    if (plant.dehumidifier_of(i) != plant_model::npos) {
+      supply_dp_c = plant.dehumidifiers()[plant.dehumidifier_of(i)].supply_dew_point_c;
+      request_c = plant.dehumidifiers()[plant.dehumidifier_of(i)].request_c;
+    }
     char line[320];
     std::snprintf(line, sizeof line, "%s,%s,%.3f,%.2f,%.3f,%.3f,%.3f,%s,%.1f,%.3f,%.2f,%.2f,%.2f,%.3f,%.2f\n",
                   t.c_str(), plant.layout().zones[i].id.c_str(), z.air_c, relative_humidity_pct(z.air_c, z.dew_point_c),
                   z.dew_point_c, z.surface_c, z.surface_c - z.dew_point_c, z.valve_open ? "open" : "closed", z.people,
-                  l.supply_c, l.setpoint_c, out.air_c, out.dew_point_c, doas.supply_dew_point_c, doas.request_c);
+                  l.supply_c, l.setpoint_c, out.air_c, out.dew_point_c, supply_dp_c, request_c);
     os << line;
   }
   return os.str();
 }
 
-std::string summary_json(const simulation& sim) {
+std::string summary_json(const simulation& sim, const pace_report* pace) {
   nlohmann::json j;
   const auto& sc = sim.script();
   j["scenario"] = sc.name;
@@ -147,10 +176,20 @@ std::string summary_json(const simulation& sim) {
   j["seed"] = sim.options().seed;
   j["condensation_zone_min"] = hundredths(sim.truth().total_condensing_min());
   nlohmann::json zones = nlohmann::json::object();
-  for (const auto& z : sim.truth().zones()) {
-    zones[z.zone] = {{"condensation_min", hundredths(z.condensing_s / 60.0)},
-                     {"lowest_margin_k", hundredths(z.min_margin_k)},
-                     {"lowest_margin_at", clock_text(z.min_margin_at_s)}};
+  const auto time_or_null = [](const std::optional<double>& t_s) {
+    return t_s ? nlohmann::json(clock_text(*t_s)) : nlohmann::json();
+  };
+  for (const auto& z : verdict_of(sim).zones) {
+    nlohmann::json o = {{"condensation_min", hundredths(z.wet_min)},
+                        {"lowest_margin_k", hundredths(z.lowest_margin_k)},
+                        {"lowest_margin_at", clock_text(z.lowest_margin_at_s)},
+                        {"first_wet_at", time_or_null(z.first_wet_s)}};
+    if (sim.options().with_service) {
+      o["alarms"] = z.alarms;
+      o["first_alarm_at"] = time_or_null(z.first_alarm_s);
+      o["warning_min"] = z.warning_min ? nlohmann::json(hundredths(*z.warning_min)) : nlohmann::json();
+    }
+    zones[z.zone] = std::move(o);
   }
   j["zones"] = zones;
   nlohmann::json by = nlohmann::json::object();
@@ -173,14 +212,39 @@ std::string summary_json(const simulation& sim) {
     const auto& c = sim.commands();
     nlohmann::json sp = nlohmann::json::object();
     for (const auto& kv : c.setpoint_by_loop) sp[kv.first] = {{"min_c", kv.second.min}, {"max_c", kv.second.max}};
+    nlohmann::json dp = nlohmann::json::object();
+    for (const auto& kv : c.dew_point_request_by_unit) {
+      dp[kv.first] = {{"min_c", kv.second.min}, {"max_c", kv.second.max}};
+    }
     j["commands"] = {{"setpoint_c", sp},
+                     {"dew_point_request_c", dp},
                      {"valve_closings", c.valve_closings},
                      {"valve_openings", c.valve_openings},
                      {"bad_commands", c.bad_commands}};
-    if (c.dew_point_request.seen) {
-      j["commands"]["dew_point_request_c"] = {{"min_c", c.dew_point_request.min}, {"max_c", c.dew_point_request.max}};
-    }
+    j["broker_outage"] = {{"readings_dropped", sim.outage().readings_dropped},
+                          {"messages_missed", sim.outage().messages_missed}};
   }
+  if (pace) {
+    j["pace"] = {
+        {"asked_speed", pace->asked_speed},       {"achieved_speed", hundredths(pace->achieved_speed)},
+        {"simulated_s", hundredths(pace->sim_s)}, {"wall_s", hundredths(pace->wall_s)},
+        {"slowed_s", hundredths(pace->slowed_s)}, {"broker_wait_s", hundredths(pace->broker_wait_s)},
+        {"broker_stalls", pace->broker_stalls},   {"service_wait_s", hundredths(pace->service_wait_s)},
+        {"service_stalls", pace->service_stalls}, {"worst_service_lag_s", hundredths(pace->worst_service_lag_s)}};
+  }
+  return j.dump();
+}
+
+std::string compare_json(const simulation& baseline, const simulation& supervised, const pace_report* pace,
+                         std::optional<double> max_wet_zone_min) {
+  nlohmann::json j;
+  j["scenario"] = supervised.script().name;
+  j["building"] = supervised.plant().layout().name;
+  j["max_wet_zone_min"] = max_wet_zone_min ? nlohmann::json(*max_wet_zone_min) : nlohmann::json();
+  const double wet = supervised.truth().total_condensing_min();
+  j["verdict"] = !max_wet_zone_min ? "none" : wet <= *max_wet_zone_min ? "pass" : "fail";
+  j["baseline"] = nlohmann::json::parse(summary_json(baseline, nullptr));
+  j["service"] = nlohmann::json::parse(summary_json(supervised, pace));
   return j.dump();
 }
 

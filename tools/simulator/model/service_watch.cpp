@@ -2,8 +2,12 @@
 
 #include <nlohmann/json.hpp>
 
+#include "dewmargin/event_kind.h"
+
 namespace dewmargin::sim {
 namespace {
+
+constexpr double k_clock_tolerance_s = 1.0;
 
 std::optional<double> number_at(const nlohmann::json& j, const char* key) {
   const auto it = j.find(key);
@@ -26,8 +30,11 @@ std::string text_at(const nlohmann::json& j, const char* key) {
 
 }  // namespace
 
-service_watch::service_watch(const site_config& cfg, double ack_after_s, std::string operator_name)
-    : prefix_(cfg.publish.prefix), ack_after_s_(ack_after_s), operator_name_(std::move(operator_name)) {
+service_watch::service_watch(const site_config& cfg, double ack_after_s, std::string operator_name, timestamp midnight)
+    : prefix_(cfg.publish.prefix),
+      ack_after_s_(ack_after_s),
+      operator_name_(std::move(operator_name)),
+      midnight_(midnight) {
   for (const auto& z : cfg.zones) {
     watched_zone w;
     w.id = z.id;
@@ -36,7 +43,7 @@ service_watch::service_watch(const site_config& cfg, double ack_after_s, std::st
 }
 
 std::vector<std::string> service_watch::topics() const {
-  return {prefix_ + "/status", prefix_ + "/events", prefix_ + "/zone/+/state"};
+  return {prefix_ + "/status", prefix_ + "/events", prefix_ + "/zone/+/state", prefix_ + "/loop/+/state"};
 }
 
 watched_zone* service_watch::find(const std::string& id) {
@@ -46,10 +53,22 @@ watched_zone* service_watch::find(const std::string& id) {
   return nullptr;
 }
 
-void service_watch::take_alarm(watched_zone& z, bool active, bool acknowledged, double now_s) {
+std::optional<double> service_watch::take_time(const std::string& ts, double now_s) {
+  if (ts.empty()) return std::nullopt;
+  const auto t = parse_iso8601(ts);
+  if (!t) return std::nullopt;
+  const double s = seconds_between(midnight_, t.value());
+  // A `ts` ahead of the simulator is a retained state of an earlier run, not the service's clock.
+  if (s <= now_s + k_clock_tolerance_s && (!service_time_s_ || s > *service_time_s_)) service_time_s_ = s;
+  return s;
+}
+
+void service_watch::take_alarm(watched_zone& z, bool active, bool acknowledged, double now_s,
+                               std::optional<double> ts_s) {
   if (active && !z.alarm_active) {
     ++tally_.alarms_raised;
     ++tally_.alarms_by_zone[z.id];
+    z.alarm_onsets_s.push_back(ts_s.value_or(now_s));
   }
   z.alarm_active = active;
   if (acknowledged) {
@@ -78,49 +97,68 @@ bool service_watch::on_message(const std::string& topic, std::string_view payloa
     on_zone_state(payload, now_s);
     return true;
   }
-  return true;  // another of the service's topics (loop states): nothing to track
+  // Another of the service's topics (loop states): only its clock matters here.
+  const auto j = nlohmann::json::parse(payload.begin(), payload.end(), nullptr, false);
+  if (!j.is_discarded() && j.is_object()) take_time(text_at(j, "ts"), now_s);
+  return true;
 }
 
 void service_watch::on_zone_state(std::string_view payload, double now_s) {
   const auto j = nlohmann::json::parse(payload.begin(), payload.end(), nullptr, false);
   if (j.is_discarded() || !j.is_object()) return;
+  const auto ts_s = take_time(text_at(j, "ts"), now_s);
   watched_zone* z = find(text_at(j, "zone"));
   if (!z) return;
   z->band = text_at(j, "band");
   z->margin_k = number_at(j, "margin_k");
   const auto a = j.find("alarm");
   if (a != j.end() && a->is_object()) {
-    take_alarm(*z, flag_at(*a, "active", false), flag_at(*a, "acknowledged", true), now_s);
+    take_alarm(*z, flag_at(*a, "active", false), flag_at(*a, "acknowledged", true), now_s, ts_s);
   }
 }
 
 void service_watch::on_event(std::string_view payload, double now_s) {
   const auto j = nlohmann::json::parse(payload.begin(), payload.end(), nullptr, false);
   if (j.is_discarded() || !j.is_object()) return;
-  const std::string kind = text_at(j, "kind");
+  const auto ts_s = take_time(text_at(j, "ts"), now_s);
+  const std::optional<event_kind> kind = parse_event_kind(text_at(j, "kind"));
   const std::string to = text_at(j, "to");
-  if (kind == "band") {
-    ++tally_.band_events;
-    ++tally_.bands_entered[to];
-  } else if (kind == "ack") {
-    ++tally_.acknowledged;
-  } else if (kind == "valve") {
-    if (to == "closed") ++tally_.valves_closed;
-    if (to == "open") ++tally_.valves_opened;
-  } else if (kind == "setpoint") {
-    ++tally_.setpoint_events;
-  } else if (kind == "dehumidify") {
-    ++tally_.dehumidify_events;
-  } else if (kind == "input") {
-    ++tally_.input_events;
-  } else if (kind == "rejected") {
-    ++tally_.rejected;
+  if (kind) {
+    switch (*kind) {
+      case event_kind::band:
+        ++tally_.band_events;
+        ++tally_.bands_entered[to];
+        break;
+      case event_kind::ack:
+        ++tally_.acknowledged;
+        break;
+      case event_kind::valve:
+        if (to == "closed") ++tally_.valves_closed;
+        if (to == "open") ++tally_.valves_opened;
+        break;
+      case event_kind::setpoint:
+        ++tally_.setpoint_events;
+        break;
+      case event_kind::dehumidify:
+        ++tally_.dehumidify_events;
+        break;
+      case event_kind::input:
+        ++tally_.input_events;
+        break;
+      case event_kind::rejected:
+        ++tally_.rejected;
+        break;
+      case event_kind::shelve:
+      case event_kind::unshelve:
+      case event_kind::service:
+        break;
+    }
   }
   watched_zone* z = find(text_at(j, "zone"));
   const auto a = j.find("alarm");
   if (z && a != j.end() && a->is_object()) {
-    if (kind == "band") z->band = to;
-    take_alarm(*z, flag_at(*a, "active", false), flag_at(*a, "acknowledged", true), now_s);
+    if (kind == event_kind::band) z->band = to;
+    take_alarm(*z, flag_at(*a, "active", false), flag_at(*a, "acknowledged", true), now_s, ts_s);
   }
 }
 

@@ -1,8 +1,12 @@
 #pragma once
-// Watches what the service publishes (zone states and events) for the status line and the
-// summary, and plays the operator: every unacknowledged alarm is acknowledged a few simulated
-// minutes after it appears, through the service's own command topic. Pure: the shell hands in
-// each message with the simulated time it arrived at.
+// Watches what the service publishes (zone and loop states, events) for the status line, the
+// summary and the verdict, and plays the operator: every unacknowledged alarm is acknowledged
+// a few simulated minutes after it appears, through the service's own command topic. Pure:
+// the shell hands in each message with the simulated time it arrived at.
+//
+// It also follows the service's own clock: in event-time mode every state and event carries
+// the time of the readings the service has taken in (`ts`), so the newest `ts` tells how far
+// behind the simulator the service is.
 #include <map>
 #include <optional>
 #include <string>
@@ -10,6 +14,7 @@
 #include <vector>
 
 #include "dewmargin/config.h"
+#include "dewmargin/timestamp.h"
 #include "model/sensor_feed.h"
 
 namespace dewmargin::sim {
@@ -22,6 +27,7 @@ struct watched_zone {
   bool acknowledged = true;
   std::optional<double> ack_due_s;  // when the simulated operator will acknowledge
   bool ack_sent = false;
+  std::vector<double> alarm_onsets_s;  // time of day each alarm became active (the service's `ts`)
 };
 
 struct service_tally {
@@ -43,7 +49,8 @@ struct service_tally {
 class service_watch {
  public:
   // ack_after_s <= 0: the operator never acknowledges.
-  service_watch(const site_config& cfg, double ack_after_s, std::string operator_name);
+  // `midnight`: the start of the simulated day, to turn the service's `ts` into times of day.
+  service_watch(const site_config& cfg, double ack_after_s, std::string operator_name, timestamp midnight);
 
   // Topics to subscribe to: zone states, events, status.
   [[nodiscard]] std::vector<std::string> topics() const;
@@ -57,18 +64,24 @@ class service_watch {
   // The zone with the lowest known margin (nullptr when none is known), and how many are unknown.
   [[nodiscard]] const watched_zone* worst_zone() const;
   [[nodiscard]] int unknown_zones() const;
+  // The newest `ts` the service has published, as a time of day; none before its first state.
+  [[nodiscard]] std::optional<double> service_time_s() const { return service_time_s_; }
 
  private:
   watched_zone* find(const std::string& id);
-  void take_alarm(watched_zone& z, bool active, bool acknowledged, double now_s);
+  void take_alarm(watched_zone& z, bool active, bool acknowledged, double now_s, std::optional<double> ts_s);
   void on_zone_state(std::string_view payload, double now_s);
   void on_event(std::string_view payload, double now_s);
+  // The message's `ts` as a time of day (and the service's clock moved on to it).
+  std::optional<double> take_time(const std::string& ts, double now_s);
 
   std::string prefix_;
   double ack_after_s_;
   std::string operator_name_;
+  timestamp midnight_;
   std::vector<watched_zone> zones_;
   service_tally tally_;
+  std::optional<double> service_time_s_;
 };
 
 }  // namespace dewmargin::sim

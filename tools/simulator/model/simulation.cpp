@@ -34,12 +34,16 @@ simulation::simulation(site_config cfg, building b, scenario s, simulation_optio
       options_(std::move(o)),
       binding_(site_binding::bind(cfg_, b).value()),
       plant_(std::move(b), scenario_),
-      sensors_(cfg_, binding_, options_.seed, options_.step_s),
+      sensors_(cfg_, binding_, plant_.layout(), scenario_, options_.seed, options_.step_s),
       truth_(plant_.layout()),
-      watch_(cfg_, options_.ack_after_s, options_.operator_name),
+      watch_(cfg_, options_.ack_after_s, options_.operator_name, scenario_.at(0.0)),
       t_s_(scenario_.start_s) {}
 
-void simulation::begin(std::vector<outbound>& out) { sensors_.sample(t_s_, now(), plant_, scenario_, out); }
+void simulation::begin(std::vector<outbound>& out) {
+  std::vector<outbound> due;
+  sensors_.sample(t_s_, now(), plant_, scenario_, due);
+  hand_out(due, out);
+}
 
 void simulation::advance(std::vector<outbound>& out) {
   if (done()) return;
@@ -47,12 +51,27 @@ void simulation::advance(std::vector<outbound>& out) {
   plant_.step(t_s_, dt);
   t_s_ += dt;
   truth_.record(t_s_, dt, plant_.zones(), scenario_);
-  sensors_.sample(t_s_, now(), plant_, scenario_, out);
-  if (options_.with_service) watch_.operator_actions(t_s_, out);
+  std::vector<outbound> due;
+  sensors_.sample(t_s_, now(), plant_, scenario_, due);
+  // The operator's screen goes quiet with the broker: no acknowledgements during an outage.
+  if (options_.with_service && !broker_down()) watch_.operator_actions(t_s_, due);
+  hand_out(due, out);
+}
+
+void simulation::hand_out(std::vector<outbound>& due, std::vector<outbound>& out) {
+  if (broker_down()) {
+    outage_.readings_dropped += static_cast<int>(due.size());
+    return;
+  }
+  for (auto& m : due) out.push_back(std::move(m));
 }
 
 void simulation::on_message(const std::string& topic, std::string_view payload) {
   if (!options_.with_service) return;
+  if (broker_down()) {
+    ++outage_.messages_missed;
+    return;
+  }
   if (binding_.is_command_topic(topic)) {
     const auto c = binding_.decode(topic, payload);
     if (!c) {
@@ -67,8 +86,8 @@ void simulation::on_message(const std::string& topic, std::string_view payload) 
         commands_.setpoint_by_loop[plant_.layout().loops[cmd.index].id].add(cmd.value_c);
         break;
       case command_target::dew_point_request:
-        plant_.set_dew_point_request_c(cmd.value_c);
-        commands_.dew_point_request.add(cmd.value_c);
+        plant_.set_dew_point_request_c(cmd.index, cmd.value_c);
+        commands_.dew_point_request_by_unit[plant_.layout().dehumidifiers[cmd.index].id].add(cmd.value_c);
         break;
       case command_target::valve:
         if (plant_.zones()[cmd.index].valve_open != cmd.open) {

@@ -37,12 +37,18 @@ struct value_span {
 
 // What the plant was told (with the service), as the plant saw it.
 struct command_record {
-  std::map<std::string, value_span> setpoint_by_loop;  // commanded supply setpoints
-  value_span dew_point_request;                        // DOAS requests
-  int valve_closings = 0;                              // a valve command that changed the valve
+  std::map<std::string, value_span> setpoint_by_loop;           // commanded supply setpoints
+  std::map<std::string, value_span> dew_point_request_by_unit;  // dehumidifier requests
+  int valve_closings = 0;                                       // a valve command that changed the valve
   int valve_openings = 0;
   int bad_commands = 0;
   std::string last_bad_command;
+};
+
+// What a broker outage of the scenario swallowed.
+struct outage_record {
+  int readings_dropped = 0;  // messages the simulator did not publish
+  int messages_missed = 0;   // messages from the service it did not hear
 };
 
 class simulation {
@@ -54,12 +60,13 @@ class simulation {
 
   // Readings at the start of the day (every sensor's first report due then).
   void begin(std::vector<outbound>& out);
-  // One step: physics, ground truth, readings due, operator acknowledgements due.
+  // One step: physics, ground truth, readings due, operator acknowledgements due. During a
+  // broker outage of the scenario nothing is handed out.
   void advance(std::vector<outbound>& out);
   [[nodiscard]] bool done() const { return t_s_ >= scenario_.end_s - 1e-9; }
 
   // A message from the broker: a plant command (applied from the next step on) or one of
-  // the service's states and events. Ignored without the service.
+  // the service's states and events. Ignored without the service and during a broker outage.
   void on_message(const std::string& topic, std::string_view payload);
   [[nodiscard]] std::vector<std::string> subscriptions() const;
 
@@ -72,9 +79,13 @@ class simulation {
   [[nodiscard]] const ground_truth& truth() const { return truth_; }
   [[nodiscard]] const service_watch& watch() const { return watch_; }
   [[nodiscard]] const command_record& commands() const { return commands_; }
+  [[nodiscard]] const outage_record& outage() const { return outage_; }
+  // Is the scenario's broker outage on now?
+  [[nodiscard]] bool broker_down() const { return scenario_.broker_down(t_s_); }
 
  private:
   simulation(site_config cfg, building b, scenario s, simulation_options o);
+  void hand_out(std::vector<outbound>& due, std::vector<outbound>& out);
 
   site_config cfg_;
   scenario scenario_;
@@ -85,6 +96,7 @@ class simulation {
   ground_truth truth_;
   service_watch watch_;
   command_record commands_;
+  outage_record outage_;
   double t_s_;
 };
 

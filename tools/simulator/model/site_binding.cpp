@@ -47,12 +47,14 @@ result<site_binding> site_binding::bind(const site_config& cfg, const building& 
   for (const auto& lc : cfg.loops) {
     if (!find_id(b.loops, lc.id)) problems.push_back("config loop " + lc.id + " is not in building " + b.name);
   }
+  for (const auto& d : b.dehumidifiers) {
+    const dehumidifier_config* dc = find_id(cfg.dehumidifiers, d.id);
+    if (!dc) problems.push_back("dehumidifier " + d.id + " of building " + b.name + " is not in the config");
+    out.units_.push_back(dc);
+  }
   for (const auto& dc : cfg.dehumidifiers) {
-    if (dc.id == b.doas.id) {
-      out.doas_ = &dc;
-    } else {
-      problems.push_back("config dehumidifier " + dc.id + " is not in building " + b.name + " (it has " + b.doas.id +
-                         ")");
+    if (!find_id(b.dehumidifiers, dc.id)) {
+      problems.push_back("config dehumidifier " + dc.id + " is not in building " + b.name);
     }
   }
   if (!problems.empty()) {
@@ -66,7 +68,9 @@ result<site_binding> site_binding::bind(const site_config& cfg, const building& 
   for (std::size_t i = 0; i < out.zones_.size(); ++i) {
     if (out.zones_[i]->valve) out.commands_[out.zones_[i]->valve->topic] = {command_target::valve, i, 0.0, false};
   }
-  if (out.doas_) out.commands_[out.doas_->dew_point_request.topic] = {command_target::dew_point_request, 0, 0.0, false};
+  for (std::size_t i = 0; i < out.units_.size(); ++i) {
+    out.commands_[out.units_[i]->dew_point_request.topic] = {command_target::dew_point_request, i, 0.0, false};
+  }
   return out;
 }
 

@@ -18,12 +18,17 @@
 
 namespace dewmargin {
 
+// Totals since start, for the shell's periodic summary line: what was counted instead of
+// being reported one by one.
 struct engine_counters {
   std::uint64_t messages = 0;        // everything offered to on_message
   std::uint64_t readings = 0;        // accepted sensor readings
   std::uint64_t bad_readings = 0;    // undecodable, implausible or out of order
+  std::uint64_t suppressed_input_events = 0;  // bad readings that repeated their input's fault: no event
   std::uint64_t commands = 0;        // operator commands accepted
-  std::uint64_t rejected = 0;        // operator commands rejected
+  std::uint64_t rejected = 0;        // operator commands rejected (not counting rate_limited)
+  std::uint64_t suppressed_rejections = 0;    // rejections that repeated the last one: no event
+  std::uint64_t rate_limited = 0;    // commands dropped over the command rate (command_guard.h)
   std::uint64_t unrouted = 0;        // messages on a topic no input uses
   std::uint64_t retained_ignored = 0; // retained measurements and commands (age unknown)
 };
@@ -55,14 +60,14 @@ class engine {
   void flush(timestamp now, engine_output& out);
 
   // Config reload: take over the previous engine's last readings (by topic and field),
-  // alarms, acknowledgements, shelving, valves and setpoints (by id). Call instead of
-  // begin().
+  // alarms, acknowledgements, shelving, bands, valves with their reopen timers, the current
+  // minute's samples and setpoints (by id). Call instead of begin().
   void adopt(const engine& previous, timestamp now, engine_output& out);
 
   // Exact topics of every input, plus <prefix>/cmd/#.
   [[nodiscard]] std::vector<std::string> subscriptions() const;
   [[nodiscard]] const site_config& config() const;
-  [[nodiscard]] const engine_counters& counters() const;
+  [[nodiscard]] engine_counters counters() const;
   [[nodiscard]] restored_state snapshot() const;
 
   // Topic helpers shared with the shell.

@@ -1,7 +1,11 @@
 #pragma once
 // Operator commands received on <prefix>/cmd/<verb>: ack, shelve, unshelve.
-// Parsing checks shape only (JSON object, fields and types); whether the zone exists
-// and has anything to acknowledge is the engine's business.
+// Parsing checks shape and bounds only (size, JSON object, fields and types); whether the
+// zone exists and has anything to acknowledge is the engine's business. Limits
+// (DEVELOPERS.md, "Commands"): the payload at most k_max_command_bytes; `by` required;
+// `zone`, `by`, `note` and `reason` cut to 200 bytes between UTF-8 characters.
+#include <cstddef>
+#include <optional>
 #include <string>
 #include <string_view>
 
@@ -9,8 +13,12 @@
 
 namespace dewmargin {
 
+inline constexpr std::size_t k_max_command_bytes = 4096;
+
 enum class command_verb { ack, shelve, unshelve };
 const char* command_verb_name(command_verb v);
+// The verb named by the last topic level; empty when it is none of the three.
+std::optional<command_verb> parse_command_verb(std::string_view verb_text);
 
 struct operator_command {
   command_verb verb = command_verb::ack;

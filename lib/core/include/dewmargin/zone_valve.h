@@ -1,8 +1,9 @@
 #pragma once
-// A zone's chilled-water valve: closed while the zone is condensing, while its window
-// is open and while its inputs are unknown (a fault, not the wait for first readings);
-// reopened only after the zone has stayed `safe` or `tight` with the window closed for
-// reopen_after_s. The first command after start opens a zone that is known and fine.
+// Rule: a zone's valve reopens only after the zone has stayed `safe` or `tight`, with its
+// window closed, for reopen_after_s since the service closed it. It closes at once while
+// the zone is condensing, while its window is open and while its inputs are unknown (a
+// fault, not the wait for first readings); the `alarm` band neither closes nor reopens it.
+// The first command after start opens a zone that is known and has no reason to be closed.
 #include <optional>
 #include <string>
 
@@ -37,6 +38,11 @@ class zone_valve {
   [[nodiscard]] valve_position position() const { return position_; }
   [[nodiscard]] bool counts_as_open() const { return position_ != valve_position::closed; }
   void restore(valve_position p) { position_ = p; }
+  // A reload: the position and the running reopen timer go on; the delay is the new config's.
+  void carry_over(const zone_valve& previous) {
+    position_ = previous.position_;
+    fine_since_ = previous.fine_since_;
+  }
 
  private:
   double reopen_after_s_;

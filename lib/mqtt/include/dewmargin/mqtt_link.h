@@ -31,6 +31,21 @@
 // - `report` is called from any of these threads, never with the link's lock held: it must
 //   be thread-safe. It never receives the password.
 //
+// States: one machine of two parts, both under the link's lock (no other state flags).
+//   Life of the link (phase):
+//     created --start()--> running --shutdown()--> draining --outbox empty or timeout--> stopping
+//       --handlers drained, client destroyed--> closed
+//     draining: the final status is queued and "online" is no longer published; sending goes on.
+//     stopping: the sender thread ends (also the first-connect loop). closed: no handler runs
+//     (the gate), publish() is refused. shutdown() before start() passes draining to closed.
+//   Session on the current connection (session), in any phase before closed:
+//     down --connected--> subscribing --subscribe acknowledged, online published--> sending
+//     sending --the library refused a send--> paused --a delivery, or 200 ms--> sending
+//     subscribing, sending, paused --connection lost--> down
+//   connected() is session != down; ready() is sending or paused. The sender takes from the
+//   outbox only in sending. Warnings given once per episode (a refused send, inbound or
+//   outbox overflow) are remembered apart: they are not states.
+//
 // Paho MQTT C++ 1.2.0 / C 1.3.12 facts that shaped this (see tests/integration):
 // - Inbound goes through set_message_callback into our own bounded queue. The consume
 //   queue cannot be bounded from async_client (its queue is private, no capacity setter),

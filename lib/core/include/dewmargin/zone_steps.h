@@ -1,0 +1,36 @@
+#pragma once
+// The steps that follow a zone's margin (zone_margin.h), in this order:
+//   1. band and alarm: the band follows the margin or the condensation switch (band.h), the
+//      alarm follows the band (zone_alarm.h) — except while the zone only waits for its
+//      first readings (`unknown`, no fault): then its alarm, also a restored one, is held;
+//   2. valve: closes or reopens by the band and the window (zone_valve.h).
+#include <optional>
+
+#include "dewmargin/band.h"
+#include "dewmargin/zone_alarm.h"
+#include "dewmargin/zone_margin.h"
+#include "dewmargin/zone_valve.h"
+
+namespace dewmargin {
+
+// A zone's band and alarm, as they persist from one evaluation to the next.
+struct zone_condition {
+  explicit zone_condition(const band_thresholds& t) : bands(t) {}
+  band_tracker bands;
+  zone_alarm alarm;
+  bool alarm_condition = false;  // ISA-18.2 alarm condition as last judged (held while waiting)
+};
+
+struct band_step {
+  band before = band::unknown;
+  band after = band::unknown;
+  bool event_due = false;  // band, alarm condition or alarm state changed: a `band` event
+};
+
+band_step step_band_and_alarm(zone_condition& c, const zone_margin& m, bool switch_active, timestamp now);
+
+// The valve's decision for the band just judged; `window_open` is empty without a contact.
+std::optional<valve_decision> step_valve(zone_valve& v, band b, bool unknown_is_fault, std::optional<bool> window_open,
+                                         timestamp now);
+
+}  // namespace dewmargin

@@ -1,0 +1,107 @@
+// Loops (the supply-water setpoint, by loop_reset_driver.h; the loop's state and cooling
+// output) and dehumidifiers (the dew-point request, by dehumidifier_request.h).
+#include <cmath>
+
+#include "dewmargin/cooling_output.h"
+#include "dewmargin/dehumidifier_request.h"
+#include "engine_state.h"
+
+namespace dewmargin {
+namespace {
+
+constexpr double k_setpoint_event_k = 0.1;  // design.md: a `setpoint` event every 0.1 K
+constexpr double k_epsilon = 1e-9;
+
+}  // namespace
+
+std::vector<zone_demand> engine::state::demands_of(const loop_rt& l) const {
+  std::vector<zone_demand> demands;
+  demands.reserve(l.zones.size());
+  for (std::size_t zi : l.zones) {
+    const zone_rt& z = zones[zi];
+    demands.push_back({&z.cfg->id, z.counts_for_reset(), z.margin.dew_point_c});
+  }
+  return demands;
+}
+
+void engine::state::tick_loops(timestamp now, engine_output& out) {
+  for (loop_rt& l : loops) {
+    drive_on_tick(l.reset, demands_of(l), now);
+    update_cooling(l, now);
+    loop_outputs(l, now, out);
+  }
+}
+
+// Setpoint event (every 0.1 K of movement) and the loop's publication.
+void engine::state::loop_outputs(loop_rt& l, timestamp now, engine_output& out) {
+  const double sp = l.reset.setpoint_c();
+  if (std::fabs(sp - l.last_event_setpoint_c) >= k_setpoint_event_k - k_epsilon) {
+    events.emit(out, now, l.subject(), event_kind::setpoint, [&](event_json& e) {
+      e.number("from", l.last_event_setpoint_c).number("to", sp).text("reason", l.reset.reason());
+      e.text("limited", setpoint_limit_name(l.reset.limited()));
+    });
+    l.last_event_setpoint_c = sp;
+    out.loop_snapshots.push_back({l.cfg->id, sp, now});
+  }
+  publish_loop(l, now, out, false);
+}
+
+void engine::state::publish_loop(loop_rt& l, timestamp now, engine_output& out, bool force) {
+  const double sp = l.reset.setpoint_c();
+  const bool significant = force || !l.published ||
+                           std::fabs(sp - l.published_setpoint_c) >= k_setpoint_event_k - k_epsilon ||
+                           l.reset.limited() != l.published_limit;
+  const auto value_of = [&](const std::optional<std::size_t>& slot) {
+    return slot ? inputs.fresh_value(*slot, now) : std::nullopt;
+  };
+  const change_gate<5>::values values{sp, inputs.fresh_value(l.supply_slot, now), value_of(l.return_slot),
+                                      value_of(l.flow_slot), l.cooling_kw};
+  if (!l.gate.should_publish(significant, values, now, cfg.publish.min_interval_s)) return;
+  const loop_state_view v{cfg.site,    l.cfg->id,        now,
+                          sp,          values[1],        values[2],
+                          values[3],   l.reset.reason(), setpoint_limit_name(l.reset.limited()),
+                          l.cooling_kw};
+  out.messages.push_back(
+      {cfg.publish.prefix + "/loop/" + l.cfg->id + "/state", format_loop_state(v), true, message_class::state});
+  std::string bare = format_bare_number(sp);
+  if (bare != l.published_bare) {
+    out.messages.push_back({l.cfg->setpoint.topic, bare, true, message_class::command});
+    l.published_bare = std::move(bare);
+  }
+  l.gate.commit(values, now);
+  l.published_setpoint_c = sp;
+  l.published_limit = l.reset.limited();
+  l.published = true;
+}
+
+void engine::state::update_cooling(loop_rt& l, timestamp now) {
+  l.cooling_kw.reset();
+  if (!l.return_slot || !l.flow_slot) return;
+  const auto sup = inputs.fresh_value(l.supply_slot, now);
+  const auto ret = inputs.fresh_value(*l.return_slot, now);
+  const auto flow = inputs.fresh_value(*l.flow_slot, now);
+  if (!sup || !ret || !flow) return;
+  const auto kw = loop_cooling_kw(*sup, *ret, *flow);
+  if (kw) l.cooling_kw = kw.value();
+}
+
+void engine::state::tick_dehumidifiers(timestamp now, engine_output& out) {
+  for (dehumidifier_rt& d : dehumidifiers) {
+    std::vector<zone_reference> refs;
+    refs.reserve(d.zones.size());
+    for (std::size_t zi : d.zones) {
+      const zone_rt& z = zones[zi];
+      refs.push_back({&z.cfg->id, z.margin.surface_min_c, z.margin.supply_c});
+    }
+    const auto& rc = d.cfg->dew_point_request;
+    const dehumidifier_request r = compute_dehumidifier_request(refs, rc);
+    if (!dehumidifier_request_moved(d.published_request_c, r.request_c)) continue;
+    events.emit(out, now, {subject_type::dehumidifier, d.cfg->id}, event_kind::dehumidify, [&](event_json& e) {
+      e.number("from", d.published_request_c).number("to", r.request_c).text("reason", r.reason);
+    });
+    out.messages.push_back({rc.topic, format_bare_number(r.request_c), true, message_class::command});
+    d.published_request_c = r.request_c;
+  }
+}
+
+}  // namespace dewmargin

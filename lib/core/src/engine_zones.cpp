@@ -1,0 +1,152 @@
+// Zone evaluation, in three steps: the margin from the zone's inputs (zone_margin.h), then
+// the band and alarm, then the valve (zone_steps.h); and the zone's published state.
+#include <algorithm>
+
+#include "engine_state.h"
+
+namespace dewmargin {
+namespace {
+
+margin_input margin_input_of(const input_slot& s, timestamp now) {
+  return {s.fresh_value(now), s.faulted(now), input_status_name(s.status)};
+}
+
+}  // namespace
+
+// A zone is judged only once each of its own inputs (air, every humidity, every surface;
+// the loop's supply for a zone without surfaces) has reported or gone missing.
+zone_readings engine::state::readings_of(const zone_rt& z, timestamp now) {
+  const double since_start_s = seconds_between(start, now);
+  const auto awaited = [&](std::size_t id) { return inputs[id].awaited(since_start_s); };
+  const input_slot& supply = inputs[loops[z.loop].supply_slot];
+  zone_readings r;
+  r.air_temp_c = margin_input_of(inputs[z.air_slot], now);
+  for (std::size_t id : z.humidity_slots) r.humidity_pct.push_back(margin_input_of(inputs[id], now));
+  for (std::size_t id : z.surface_slots) r.surfaces_c.push_back(margin_input_of(inputs[id], now));
+  r.supply_c = margin_input_of(supply, now);
+  r.supply_awaiting = supply.status == input_status::awaiting;
+  r.supply_allowed = !(z.hold_restored_alarm && !z.surface_slots.empty());
+  r.waiting = awaited(z.air_slot) || std::any_of(z.humidity_slots.begin(), z.humidity_slots.end(), awaited) ||
+              std::any_of(z.surface_slots.begin(), z.surface_slots.end(), awaited) ||
+              (z.surface_slots.empty() && awaited(loops[z.loop].supply_slot));
+  return r;
+}
+
+void engine::state::evaluate_zone(std::size_t zi, timestamp now, engine_output& out) {
+  zone_rt& z = zones[zi];
+  const bool surface_seen = std::any_of(z.surface_slots.begin(), z.surface_slots.end(),
+                                        [&](std::size_t id) { return inputs[id].last_reading.has_value(); });
+  if (surface_seen) z.hold_restored_alarm = false;
+  z.margin = compute_zone_margin(readings_of(z, now));
+
+  const bool switch_active = z.switch_slot && inputs[*z.switch_slot].active;
+  const band_step step = step_band_and_alarm(z.condition, z.margin, switch_active, now);
+  if (step.event_due) emit_band_event(z, step, switch_active, now, out);
+  const bool valve_moved = move_valve(z, step.after, now, out);
+  if (step.event_due || valve_moved) emit_zone_snapshot(out, z, now);
+
+  if (z.margin.margin_k) z.trend.add(now, *z.margin.margin_k);
+  if (auto finished = z.sample.add(now, z.margin, z.condition.bands.current(), z.cfg->id)) {
+    out.samples.push_back(std::move(*finished));
+  }
+  // A rise of the loop's supply-water setpoint goes out at once; falls wait for the tick.
+  loop_rt& l = loops[z.loop];
+  if (drive_on_zone(l.reset, {&z.cfg->id, z.counts_for_reset(), z.margin.dew_point_c}, now)) {
+    loop_outputs(l, now, out);
+  }
+  publish_zone(z, now, out, false);
+}
+
+void engine::state::emit_band_event(const zone_rt& z, const band_step& step, bool switch_active, timestamp now,
+                                    engine_output& out) {
+  const zone_margin& m = z.margin;
+  const bool alarm_related = is_alarm_band(step.before) || is_alarm_band(step.after);
+  events.emit(
+      out, now, z.subject(), event_kind::band,
+      [&](event_json& e) {
+        e.text("from", band_name(step.before)).text("to", band_name(step.after));
+        e.number("margin_k", m.margin_k).number("dew_point_c", m.dew_point_c);
+        e.number("surface_min_c", m.surface_min_c).number("supply_c", m.supply_c);
+        if (m.margin_source) {
+          e.text("margin_source", m.margin_source);
+        } else {
+          e.null("margin_source");
+        }
+        if (switch_active) {
+          e.text("reason", "condensation switch active");
+        } else if (step.after == band::unknown) {
+          e.text("reason", m.unknown_reason);
+        }
+        e.alarm(z.condition.alarm.status());
+      },
+      alarm_related);
+}
+
+// True when the valve moved (an event and a command went out).
+bool engine::state::move_valve(zone_rt& z, band b, timestamp now, engine_output& out) {
+  if (!z.valve) return false;
+  const std::optional<bool> window_open =
+      z.window_slot ? std::optional<bool>(inputs[*z.window_slot].active) : std::nullopt;
+  const auto d = step_valve(*z.valve, b, z.margin.unknown_is_fault, window_open, now);
+  if (!d) return false;
+  events.emit(out, now, z.subject(), event_kind::valve, [&](event_json& e) {
+    e.text_or_null("from", valve_position_name(d->from)).text("to", valve_position_name(d->to));
+    e.text("reason", d->reason);
+  });
+  publish_valve(z, d->to, out);
+  return true;
+}
+
+void engine::state::publish_valve(const zone_rt& z, valve_position p, engine_output& out) const {
+  const valve_config& vcfg = *z.cfg->valve;
+  out.messages.push_back(
+      {vcfg.topic, p == valve_position::open ? vcfg.open_payload : vcfg.closed_payload, true, message_class::command});
+}
+
+void engine::state::expire_shelving(zone_rt& z, timestamp now, engine_output& out) {
+  if (!z.condition.alarm.expire_shelving(now)) return;
+  events.emit(
+      out, now, z.subject(), event_kind::unshelve,
+      [&](event_json& e) {
+        e.text("from", "shelved").text("to", "unshelved").null("by").text("reason", "shelving expired");
+        e.alarm(z.condition.alarm.status());
+      },
+      true);
+  emit_zone_snapshot(out, z, now);
+}
+
+void engine::state::publish_zone(zone_rt& z, timestamp now, engine_output& out, bool force) {
+  const zone_margin& m = z.margin;
+  const alarm_status& alarm = z.condition.alarm.status();
+  const band current = z.condition.bands.current();
+  const valve_position vp = z.valve ? z.valve->position() : valve_position::unset;
+  const bool significant =
+      force || !z.published || current != z.published_band || alarm != z.published_alarm || vp != z.published_valve;
+  const std::optional<double> minutes = m.margin_k ? z.trend.minutes_to_condensation(now) : std::nullopt;
+  const change_gate<7>::values values{m.dew_point_c, m.air_temp_c, m.rh_pct, m.surface_min_c,
+                                      m.supply_c,    m.margin_k,   minutes};
+  if (!z.gate.should_publish(significant, values, now, cfg.publish.min_interval_s)) return;
+  const zone_state_view v{cfg.site,
+                          z.cfg->id,
+                          now,
+                          band_name(current),
+                          m.dew_point_c,
+                          m.air_temp_c,
+                          m.rh_pct,
+                          m.surface_min_c,
+                          m.supply_c,
+                          m.margin_k,
+                          m.margin_source,
+                          vp == valve_position::unset ? nullptr : valve_position_name(vp),
+                          alarm,
+                          minutes};
+  out.messages.push_back(
+      {cfg.publish.prefix + "/zone/" + z.cfg->id + "/state", format_zone_state(v), true, message_class::state});
+  z.gate.commit(values, now);
+  z.published_band = current;
+  z.published_alarm = alarm;
+  z.published_valve = vp;
+  z.published = true;
+}
+
+}  // namespace dewmargin

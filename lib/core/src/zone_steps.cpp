@@ -1,0 +1,35 @@
+#include "dewmargin/zone_steps.h"
+
+namespace dewmargin {
+
+band_step step_band_and_alarm(zone_condition& c, const zone_margin& m, bool switch_active, timestamp now) {
+  band_inputs in;
+  in.margin_k = m.margin_k;
+  in.switch_active = switch_active;
+  band_step step;
+  step.before = c.bands.current();
+  const bool condition_before = c.alarm_condition;
+  const alarm_status alarm_before = c.alarm.status();
+  step.after = c.bands.update(in, now);
+  // While a zone only waits for its first readings its alarm is held as it is (also a
+  // restored one), so that a restart neither raises nor clears alarms by itself.
+  if (step.after != band::unknown || m.unknown_is_fault) {
+    c.alarm.on_band(step.after, m.unknown_is_fault);
+    c.alarm_condition = is_alarm_band(step.after);
+  }
+  step.event_due =
+      step.after != step.before || c.alarm_condition != condition_before || c.alarm.status() != alarm_before;
+  return step;
+}
+
+std::optional<valve_decision> step_valve(zone_valve& v, band b, bool unknown_is_fault, std::optional<bool> window_open,
+                                         timestamp now) {
+  valve_conditions vc;
+  vc.zone_band = b;
+  vc.unknown_is_fault = unknown_is_fault;
+  vc.window_open = window_open.value_or(false);
+  vc.has_window = window_open.has_value();
+  return v.update(vc, now);
+}
+
+}  // namespace dewmargin

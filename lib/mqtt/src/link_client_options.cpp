@@ -1,0 +1,50 @@
+#include "link_client_options.h"
+
+#include <cmath>
+#include <utility>
+
+namespace dewmargin::detail {
+
+::mqtt::create_options make_create_options(const mqtt_link_options& options) {
+  ::mqtt::create_options create(MQTTVERSION_3_1_1);
+  create.set_send_while_disconnected(false);  // the outbox buffers; a refused send goes back to it
+  create.set_max_buffered_messages(static_cast<int>(options.max_in_flight) + k_library_headroom);
+  return create;
+}
+
+::mqtt::connect_options make_connect_options(const mqtt_link_options& options, const std::string& password) {
+  ::mqtt::connect_options c;
+  c.set_mqtt_version(MQTTVERSION_3_1_1);
+  c.set_clean_session(false);
+  c.set_keep_alive_interval(static_cast<int>(std::lround(options.broker.keepalive_s)));
+  c.set_connect_timeout(static_cast<int>(options.connect_timeout.count()));
+  c.set_automatic_reconnect(static_cast<int>(options.reconnect_min.count()),
+                            static_cast<int>(options.reconnect_max.count()));
+  c.set_max_inflight(static_cast<int>(options.max_in_flight) + k_library_headroom);
+  if (!options.status_topic.empty()) {
+    c.set_will(::mqtt::will_options(options.status_topic, options.offline_will_payload, k_qos, true));
+  }
+  if (!options.broker.username.empty()) {
+    c.set_user_name(options.broker.username);
+  }
+  if (!password.empty()) {
+    c.set_password(password);
+  }
+  if (options.broker.uri.compare(0, 6, "ssl://") == 0) {
+    ::mqtt::ssl_options ssl;
+    if (options.broker.tls) {
+      const tls_config& t = *options.broker.tls;
+      if (!t.ca_file.empty()) ssl.set_trust_store(t.ca_file);
+      if (!t.cert_file.empty()) ssl.set_key_store(t.cert_file);
+      if (!t.key_file.empty()) ssl.set_private_key(t.key_file);
+    }
+    ssl.set_enable_server_cert_auth(true);  // the broker's chain must verify...
+    ssl.set_verify(true);                   // ...and its name must match the host in the URI
+    // No ssl.set_error_handler(): connect() copies the options and the C library keeps a
+    // pointer into that copy, which is gone when the handler runs (found by ASan).
+    c.set_ssl(std::move(ssl));
+  }
+  return c;
+}
+
+}  // namespace dewmargin::detail

@@ -1,0 +1,135 @@
+// The service's own fault policies, without the process: containment of one message's
+// exception, the event log budget, and the key under which repeated problems are counted.
+#include <gtest/gtest.h>
+
+#include <nlohmann/json.hpp>
+#include <stdexcept>
+#include <vector>
+
+#include "event_log_budget.h"
+#include "logging.h"
+#include "message_containment.h"
+
+namespace dewmargin::daemon {
+namespace {
+
+using clock = std::chrono::steady_clock;
+using namespace std::chrono_literals;
+
+struct recording {
+  std::vector<containment_report> reports;
+  message_containment make(std::chrono::seconds interval = 60s) {
+    return message_containment(interval, [this](const containment_report& r) { reports.push_back(r); });
+  }
+};
+
+TEST(MessageContainment, AHandlerThatReturnsIsNotCounted) {
+  recording rec;
+  auto c = rec.make();
+  int calls = 0;
+  EXPECT_TRUE(c.run("r/a/temp", [&] { ++calls; }));
+  EXPECT_EQ(calls, 1);
+  EXPECT_EQ(c.dropped_total(), 0u);
+  EXPECT_TRUE(rec.reports.empty());
+}
+
+TEST(MessageContainment, ARuntimeErrorDropsTheMessageAndIsReportedWithTopicAndError) {
+  recording rec;
+  auto c = rec.make();
+  EXPECT_FALSE(c.run("r/a/temp", [] { throw std::runtime_error("bad payload"); }));
+  EXPECT_EQ(c.dropped_total(), 1u);
+  ASSERT_EQ(rec.reports.size(), 1u);
+  EXPECT_EQ(rec.reports[0].topic, "r/a/temp");
+  EXPECT_EQ(rec.reports[0].error, "bad payload");
+  EXPECT_EQ(rec.reports[0].dropped_since_last, 0u);
+}
+
+TEST(MessageContainment, TheJsonLibraryRefusingInvalidUtf8IsContained) {
+  recording rec;
+  auto c = rec.make();
+  EXPECT_FALSE(c.run("r/a/temp", [] { (void)nlohmann::json(std::string("\x80")).dump(); }));
+  ASSERT_EQ(rec.reports.size(), 1u);
+  EXPECT_NE(rec.reports[0].error.find("invalid UTF-8 byte"), std::string::npos) << rec.reports[0].error;
+}
+
+TEST(MessageContainment, RepeatsWithinTheIntervalAreCountedAndSummedIntoTheNextReport) {
+  recording rec;
+  auto c = rec.make(60s);
+  const auto t0 = clock::time_point{} + 1h;
+  const auto fail = [] { throw std::runtime_error("x"); };
+  for (int i = 0; i < 100; ++i) EXPECT_FALSE(c.run("t", fail, t0 + std::chrono::milliseconds(i * 100)));
+  EXPECT_EQ(rec.reports.size(), 1u);
+  EXPECT_FALSE(c.run("t", fail, t0 + 61s));
+  ASSERT_EQ(rec.reports.size(), 2u);
+  EXPECT_EQ(rec.reports[1].dropped_since_last, 99u);
+  EXPECT_EQ(c.dropped_total(), 101u);
+}
+
+TEST(MessageContainment, InternalFaultsAreRethrown) {
+  recording rec;
+  auto c = rec.make();
+  EXPECT_THROW(c.run("t", [] { throw std::bad_alloc(); }), std::bad_alloc);
+  EXPECT_THROW(c.run("t", [] { throw std::logic_error("invariant broken"); }), std::logic_error);
+  EXPECT_THROW(c.run("t", [] { throw std::out_of_range("index"); }), std::out_of_range);
+  EXPECT_THROW(c.run("t", [] { throw 42; }), int);
+  EXPECT_EQ(c.dropped_total(), 0u);
+  EXPECT_TRUE(rec.reports.empty());
+}
+
+TEST(MessageContainment, AThrowingReporterIsNotContained) {
+  message_containment c(60s, [](const containment_report&) { throw std::runtime_error("log sink broken"); });
+  EXPECT_THROW(c.run("t", [] { throw std::runtime_error("x"); }), std::runtime_error);
+}
+
+TEST(EscapeForReport, KeepsPrintableAsciiAndEscapesEverythingElse) {
+  const struct {
+    std::string in;
+    std::string out;
+  } cases[] = {
+      {"r/a/temp", "r/a/temp"},          {std::string("\x80", 1), "\\x80"}, {std::string("a\0b", 3), "a\\x00b"},
+      {"line\nbreak", "line\\x0abreak"}, {"back\\slash", "back\\x5cslash"}, {"\xc3\xa9", "\\xc3\\xa9"},
+  };
+  for (const auto& c : cases) EXPECT_EQ(escape_for_report(c.in), c.out) << c.in;
+  EXPECT_EQ(escape_for_report(std::string(1000, 'a'), 10), "aaaaaaaaaa...");
+}
+
+TEST(EventLogBudget, AlarmRelatedEventsAreAlwaysWritten) {
+  event_log_budget b({60s, 5}, clock::time_point{});
+  for (const char* kind : {"band", "ack", "shelve", "unshelve", "valve", "setpoint", "dehumidify", "service"}) {
+    for (int i = 0; i < 100; ++i) EXPECT_TRUE(b.admit(kind)) << kind;
+  }
+  EXPECT_FALSE(b.summary_due(clock::time_point{} + 61s)) << "nothing held back, nothing counted";
+}
+
+TEST(EventLogBudget, InputAndRejectedGetFiveLinesAMinuteAndASummaryWithTheCounts) {
+  const auto t0 = clock::time_point{} + 1h;
+  event_log_budget b({60s, 5}, t0);
+  int input_lines = 0;
+  int rejected_lines = 0;
+  for (int i = 0; i < 5000; ++i) input_lines += b.admit("input") ? 1 : 0;
+  for (int i = 0; i < 1000; ++i) rejected_lines += b.admit("rejected") ? 1 : 0;
+  b.count("inbound messages dropped (queue full)", 7);
+  b.count("outbound messages dropped (outbox full)", 0);  // zero: not mentioned
+  EXPECT_EQ(input_lines, 5);
+  EXPECT_EQ(rejected_lines, 5);
+  EXPECT_FALSE(b.summary_due(t0 + 59s));
+  const auto summary = b.summary_due(t0 + 60s);
+  ASSERT_TRUE(summary);
+  EXPECT_EQ(*summary,
+            "in the last 60 s: 5000 input events (5 logged), 1000 rejected events (5 logged), "
+            "7 inbound messages dropped (queue full)");
+  // A new window: the budget is there again, and a quiet minute says nothing.
+  EXPECT_TRUE(b.admit("input"));
+  EXPECT_FALSE(b.summary_due(t0 + 121s));
+}
+
+TEST(ProblemReporter, CountersInAMessageDoNotMakeItANewProblem) {
+  EXPECT_EQ(problem_reporter::problem_key("/var/lib/h.db: commit of 12 rows (3 events) failed; retry in 0.25 s"),
+            problem_reporter::problem_key("/var/lib/h.db: commit of 7 rows (10 events) failed; retry in 30 s"));
+  EXPECT_NE(problem_reporter::problem_key("/var/lib/h.db: commit failed: disk full"),
+            problem_reporter::problem_key("/var/lib/h.db: commit failed: database is locked"));
+  EXPECT_LE(problem_reporter::problem_key(std::string(5000, 'x')).size(), 200u);
+}
+
+}  // namespace
+}  // namespace dewmargin::daemon

@@ -1,0 +1,96 @@
+// The band-and-alarm step and the valve step that follow a zone's margin.
+#include <gtest/gtest.h>
+
+#include "dewmargin/zone_steps.h"
+
+namespace dewmargin {
+namespace {
+
+timestamp at_s(double s) { return from_unix_ms(1'800'000'000'000 + static_cast<std::int64_t>(s * 1000.0)); }
+
+zone_margin margin_of(double k) {
+  zone_margin m;
+  m.margin_k = k;
+  return m;
+}
+zone_margin waiting() {
+  zone_margin m;
+  m.unknown_reason = "waiting for the first readings";
+  return m;
+}
+zone_margin faulty() {
+  zone_margin m;
+  m.unknown_is_fault = true;
+  return m;
+}
+
+TEST(ZoneSteps, WaitingHoldsARestoredAlarmWithoutAnEvent) {
+  zone_condition c{band_thresholds{}};
+  c.alarm.restore({true, true, std::nullopt}, band::condensing);
+  c.alarm_condition = true;
+  const band_step s = step_band_and_alarm(c, waiting(), false, at_s(0));
+  EXPECT_EQ(s.after, band::unknown);
+  EXPECT_FALSE(s.event_due);
+  EXPECT_TRUE(c.alarm.status().active);
+  EXPECT_TRUE(c.alarm.status().acknowledged);
+}
+
+TEST(ZoneSteps, AFaultAfterTheWaitReArmsTheHeldAlarmWithAnEvent) {
+  zone_condition c{band_thresholds{}};
+  c.alarm.restore({true, true, std::nullopt}, band::condensing);
+  c.alarm_condition = true;
+  const band_step s = step_band_and_alarm(c, faulty(), false, at_s(0));
+  EXPECT_EQ(s.before, band::unknown);
+  EXPECT_EQ(s.after, band::unknown);
+  EXPECT_TRUE(s.event_due) << "the alarm state changed though the band did not";
+  EXPECT_FALSE(c.alarm.status().acknowledged);
+}
+
+TEST(ZoneSteps, SameBandAsTheRestoredAlarmKeepsTheAcknowledgement) {
+  zone_condition c{band_thresholds{}};
+  c.alarm.restore({true, true, std::nullopt}, band::condensing);
+  c.alarm_condition = true;
+  const band_step s = step_band_and_alarm(c, margin_of(-0.5), false, at_s(0));
+  EXPECT_EQ(s.after, band::condensing);
+  EXPECT_TRUE(s.event_due);
+  EXPECT_TRUE(c.alarm.status().acknowledged);
+}
+
+TEST(ZoneSteps, TheSwitchMakesAWaitingZoneCondensing) {
+  zone_condition c{band_thresholds{}};
+  const band_step s = step_band_and_alarm(c, waiting(), true, at_s(0));
+  EXPECT_EQ(s.after, band::condensing);
+  EXPECT_TRUE(c.alarm.status().active);
+}
+
+TEST(ZoneSteps, ValveStepNamesTheWindowOnlyWhenThereIsOne) {
+  for (const auto& [window, reason] : std::vector<std::pair<std::optional<bool>, std::string>>{
+           {false, "zone safe, window closed for 10 s"}, {std::nullopt, "zone safe for 10 s"}}) {
+    zone_valve v(10);
+    v.restore(valve_position::closed);
+    EXPECT_FALSE(step_valve(v, band::safe, false, window, at_s(0)));
+    const auto d = step_valve(v, band::safe, false, window, at_s(10));
+    ASSERT_TRUE(d);
+    EXPECT_EQ(d->reason, reason);
+  }
+  zone_valve v(10);
+  const auto closed = step_valve(v, band::safe, false, true, at_s(0));
+  ASSERT_TRUE(closed);
+  EXPECT_EQ(closed->reason, "window open");
+}
+
+TEST(ZoneValve, CarryOverKeepsPositionAndTheRunningReopenTimer) {
+  zone_valve old(600);
+  old.restore(valve_position::closed);
+  EXPECT_FALSE(old.update({band::safe, false, false, true}, at_s(0)));  // fine since 0 s
+  zone_valve reloaded(300);                                             // the new config's delay
+  reloaded.carry_over(old);
+  EXPECT_EQ(reloaded.position(), valve_position::closed);
+  EXPECT_FALSE(reloaded.update({band::safe, false, false, true}, at_s(299)));
+  const auto d = reloaded.update({band::safe, false, false, true}, at_s(300));
+  ASSERT_TRUE(d);
+  EXPECT_EQ(d->to, valve_position::open);
+}
+
+}  // namespace
+}  // namespace dewmargin
