@@ -1,5 +1,7 @@
 #include "dewmargin/live_snapshot.h"
 
+#include <optional>
+
 #include "dewmargin/live_book.h"
 
 namespace dewmargin {
@@ -42,11 +44,16 @@ live_snapshot::copy live_snapshot::take(bool with_history) const {
   c.prefix = prefix_;
   c.site = site_;
   c.version = version_;
-  const std::lock_guard<std::mutex> lock(mutex_);
-  c.states = states_;
-  c.counters = counters_;
-  if (with_history) {
-    for (const auto& key : history_.keys()) c.margins.emplace(key, history_.series(key));
+  std::optional<live::margin_history> history;
+  {
+    // Only copies under the lock: the worker waits for a copy at most, never for a client.
+    const std::lock_guard<std::mutex> lock(mutex_);
+    c.states = states_;
+    c.counters = counters_;
+    if (with_history) history = history_;
+  }
+  if (history) {
+    for (const auto& key : history->keys()) c.margins.emplace(key, history->series(key));
   }
   return c;
 }
