@@ -115,9 +115,11 @@ int main(int argc, char** argv) {
   watch->add_option("--ca-file", watch_opts.ca_file, "CA certificate of the broker (ssl://)")->type_name("FILE");
   watch->add_option("--by", watch_opts.by, "Your initials, sent with acknowledge and shelve (asked once otherwise)")
       ->type_name("INITIALS");
-  watch->add_flag("--once", watch_opts.once, "Print one snapshot once the retained states have arrived, then exit");
+  watch->add_flag("--once", watch_opts.once,
+                  "Print one snapshot once the retained states have arrived (no new one for 0.3 s, at most 5 s "
+                  "after subscribing), then exit");
   watch->add_option("--width", watch_opts.width, "With --once: columns (default: the terminal's, or 80)")
-      ->check(CLI::Range(20, 1000));
+      ->check(CLI::Range(26, 1000));
   watch->add_option("--wait-s", watch_opts.wait_s, "With --once: longest wait for the broker, seconds (default 10)")
       ->check(CLI::Range(0.1, 600.0));
   watch->footer(std::string(

@@ -325,7 +325,10 @@ class interactive_view {
 
   int run() {
     watch::terminal_session term(STDIN_FILENO, STDOUT_FILENO);
-    if (!term.ok()) return k_exit_runtime;
+    if (!term.ok()) {
+      std::cerr << "dewmargin: watch: cannot switch the terminal to raw keys; use --once for a snapshot\n";
+      return k_exit_runtime;
+    }
     size_ = watch::read_terminal_size(STDOUT_FILENO);
     colour_ = colour_wanted(STDOUT_FILENO);
     auto last_draw = steady::now() - k_frame;
