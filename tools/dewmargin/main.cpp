@@ -99,15 +99,17 @@ int main(int argc, char** argv) {
                   k_caution);
   history->callback([&] { exit_code = run_history(hist, std::cout, std::cerr); });
 
-
   // watch: live margins from the retained state topics (tools/dewmargin/watch/).
   watch_options watch_opts;
-  auto* watch = app.add_subcommand("watch", "Live margins of every zone, worst first, from the broker's retained states");
+  auto* watch =
+      app.add_subcommand("watch", "Live margins of every zone, worst first, from the broker's retained states");
   watch->add_option("--config", watch_opts.config_file, "Config file (YAML): broker, TLS, password file and prefix")
       ->type_name("FILE");
-  watch->add_option("--broker", watch_opts.broker, "Broker URI (tcp://, ssl://); overrides the config's")->type_name("URI");
-  watch->add_option("--prefix", watch_opts.prefixes,
-                    "Topic prefix of a site; repeat for several sites on one broker (grouped by site)")
+  watch->add_option("--broker", watch_opts.broker, "Broker URI (tcp://, ssl://); overrides the config's")
+      ->type_name("URI");
+  watch
+      ->add_option("--prefix", watch_opts.prefixes,
+                   "Topic prefix of a site; repeat for several sites on one broker (grouped by site)")
       ->type_name("P");
   watch->add_option("--username", watch_opts.username, "Broker user name (without --config)")->type_name("NAME");
   watch->add_option("--password-file", watch_opts.password_file, "File holding the broker password (first line)")
@@ -122,20 +124,21 @@ int main(int argc, char** argv) {
       ->check(CLI::Range(26, 1000));
   watch->add_option("--wait-s", watch_opts.wait_s, "With --once: longest wait for the broker, seconds (default 10)")
       ->check(CLI::Range(0.1, 600.0));
-  watch->footer(std::string(
-                    "\nColumns: zone, band, margin (K), dew point, coldest surface, supply water (degC), minutes to\n"
-                    "condensation, valve ('*': held, see the last column), alarm (ACTIVE, acked, latched, shelved,\n"
-                    "suppr), age of the state. Worst zone first: unknown, condensing, alarm, tight, safe, then the\n"
-                    "lowest margin. Narrower than 80 columns, columns drop in this order: why held, age, water,\n"
-                    "dew point, surface, to wet, valve, alarm.\n\n"
-                    "Keys: q or Ctrl-C quits. Type a command and Enter: a ZONE [NOTE] acknowledges, s ZONE MIN\n"
-                    "[REASON] shelves for MIN minutes, u ZONE unshelves; the service's answer is shown. Colour only\n"
-                    "on a terminal and when NO_COLOR is unset.\n\n"
-                    "Examples:\n"
-                    "  dewmargin watch --config /etc/dewmargin/dewmargin.yaml --by JK\n"
-                    "  dewmargin watch --config /etc/dewmargin/dewmargin.yaml --once\n"
-                    "  dewmargin watch --broker tcp://central:1883 --prefix bldg-a/dewmargin --prefix bldg-b/dewmargin\n\n") +
-                k_caution);
+  watch->footer(
+      std::string(
+          "\nColumns: zone, band, margin (K), dew point, coldest surface, supply water (degC), minutes to\n"
+          "condensation, valve ('*': held, see the last column), alarm (ACTIVE, acked, latched, shelved,\n"
+          "suppr), age of the state. Worst zone first: unknown, condensing, alarm, tight, safe, then the\n"
+          "lowest margin. Narrower than 80 columns, columns drop in this order: why held, age, water,\n"
+          "dew point, surface, to wet, valve, alarm.\n\n"
+          "Keys: q or Ctrl-C quits. Type a command and Enter: a ZONE [NOTE] acknowledges, s ZONE MIN\n"
+          "[REASON] shelves for MIN minutes, u ZONE unshelves; the service's answer is shown. Colour only\n"
+          "on a terminal and when NO_COLOR is unset.\n\n"
+          "Examples:\n"
+          "  dewmargin watch --config /etc/dewmargin/dewmargin.yaml --by JK\n"
+          "  dewmargin watch --config /etc/dewmargin/dewmargin.yaml --once\n"
+          "  dewmargin watch --broker tcp://central:1883 --prefix bldg-a/dewmargin --prefix bldg-b/dewmargin\n\n") +
+      k_caution);
   watch->callback([&] { exit_code = run_watch(watch_opts, std::cout, std::cerr); });
 
   try {
