@@ -26,7 +26,7 @@ namespace dewmargin::daemon {
 namespace {
 
 constexpr auto k_tick = std::chrono::seconds(1);
-constexpr auto k_http_retry = std::chrono::seconds(60);  // the web server, when it could not start
+constexpr auto k_http_retry = std::chrono::seconds(60);      // the web server, when it could not start
 constexpr auto k_max_wait = std::chrono::milliseconds(200);  // signal and watchdog latency
 constexpr int k_burst = 256;
 constexpr std::size_t k_max_early_messages = 1000;
