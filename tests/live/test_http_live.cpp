@@ -149,6 +149,14 @@ TEST(LiveHttp, ApiServesTheRetainedObjectsWorstFirst) {
   EXPECT_EQ(page->body.find("src=\"http"), std::string::npos);
   EXPECT_EQ(page->body.find("href=\"http"), std::string::npos);
   EXPECT_EQ(c.Get("/nothing-here")->status, 404);
+  // Without a token, only requests to a loopback name are answered (no DNS rebinding).
+  for (const char* path : {"/", "/metrics", "/api/zones"}) {
+    const auto foreign = c.Get(path, {{"Host", "attacker.example:8088"}});
+    ASSERT_TRUE(foreign) << path;
+    EXPECT_EQ(foreign->status, 403) << path;
+    EXPECT_EQ(c.Get(path, {{"Host", "localhost:8088"}})->status, 200) << path;
+    EXPECT_EQ(c.Get(path, {{"Host", "[::1]:8088"}})->status, 200) << path;
+  }
   site.service->stop();
 }
 

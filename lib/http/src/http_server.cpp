@@ -156,6 +156,17 @@ bool same_secret(const std::string& given, const std::string& expected) {
   return diff == 0;
 }
 
+// The host of a Host header ("127.0.0.1:8088", "[::1]:8088", "localhost") is a loopback name.
+bool loopback_host(const std::string& host_header) {
+  std::string host = host_header;
+  if (!host.empty() && host.front() == '[') {
+    host = host.substr(1, host.find(']') == std::string::npos ? std::string::npos : host.find(']') - 1);
+  } else if (const auto colon = host.find(':'); colon != std::string::npos) {
+    host = host.substr(0, colon);
+  }
+  return host == "localhost" || host == "::1" || host.rfind("127.", 0) == 0;
+}
+
 std::string json_array_of(const std::vector<const std::string*>& payloads) {
   std::string out = "[";
   for (std::size_t i = 0; i < payloads.size(); ++i) {
@@ -178,7 +189,19 @@ struct http_server::impl {
 
   impl(http_server_options o, const live_snapshot& s) : options(std::move(o)), snapshot(s) {}
 
+  // Without a token the server listens on loopback only, and answers only requests made to
+  // a loopback name: a web page elsewhere that points its own host name at 127.0.0.1 (DNS
+  // rebinding) gets nothing. With a token the token decides.
+  bool addressed_here(const httplib::Request& req, httplib::Response& res) const {
+    if (!options.token.empty() || loopback_host(req.get_header_value("Host"))) return true;
+    res.status = 403;
+    res.set_content("this server answers requests to 127.0.0.1, [::1] or localhost only\n",
+                    "text/plain; charset=utf-8");
+    return false;
+  }
+
   bool authorized(const httplib::Request& req, httplib::Response& res) const {
+    if (!addressed_here(req, res)) return false;
     if (options.token.empty()) return true;
     const std::string header = req.get_header_value("Authorization");
     const std::string scheme = "Bearer ";
@@ -197,8 +220,9 @@ struct http_server::impl {
   }
 
   void routes() {
-    server.Get("/", [this](const httplib::Request&, httplib::Response& res) {
+    server.Get("/", [this](const httplib::Request& req, httplib::Response& res) {
       common_headers(res);
+      if (!addressed_here(req, res)) return;
       // Everything the page needs is in it: no outside script, style, font or image.
       res.set_header("Content-Security-Policy",
                      "default-src 'none'; script-src 'unsafe-inline'; style-src 'unsafe-inline'; "
