@@ -115,6 +115,7 @@ inline store_writer_options test_options(const std::filesystem::path& file, erro
   o.retry_backoff_initial = std::chrono::milliseconds{5};
   o.retry_backoff_max = std::chrono::milliseconds{20};
   o.report_error = errors.callback();
+  o.keep_minute_samples_days = 0;  // roll-ups are tested on their own (test_rollup.cpp)
   return o;
 }
 

@@ -63,11 +63,12 @@ TEST_F(HistoryReader, FiltersBySubjectTimeAndKind) {
       {"zone z1", {std::string("z1"), {}, {}, {}}, {2, 1}},
       {"a loop id", {std::string("loop-a"), {}, {}, {}}, {5}},
       {"unknown id", {std::string("nowhere"), {}, {}, {}}, {}},
-      {"kind band", {{}, {}, {}, std::string("band")}, {2, 3}},
+      {"kind band", {{}, {}, {}, {"band"}}, {2, 3}},
+      {"kinds band and valve", {{}, {}, {}, {"valve", "band"}}, {2, 3, 4}},
       {"since is inclusive", {{}, at(30), {}, {}}, {1, 3, 4}},
       {"until is exclusive", {{}, {}, at(30), {}}, {2, 5}},
       {"a window", {{}, at(10), at(60), {}}, {5, 1, 3}},
-      {"all filters", {std::string("z2"), at(0), at(61), std::string("valve")}, {4}},
+      {"all filters", {std::string("z2"), at(0), at(61), {"valve"}}, {4}},
   };
   for (const auto& c : cases) {
     auto rows = reader.value().events(c.filter);

@@ -2,6 +2,7 @@
 #include <fstream>
 #include <sstream>
 
+#include "dewmargin/psychro.h"
 #include "migrations.h"
 #include "store_test_support.h"
 
@@ -52,12 +53,15 @@ TEST(StoreSchema, FreshFileGetsIdentityVersionAndPragmas) {
   EXPECT_EQ(db.text("PRAGMA journal_mode"), "wal");
   EXPECT_EQ(db.integer("PRAGMA auto_vacuum"), 2) << "2 = INCREMENTAL";
   EXPECT_EQ(db.texts("SELECT name FROM sqlite_schema WHERE type = 'table' ORDER BY name"),
-            (std::vector<std::string>{"events", "loop_state", "zone_samples", "zone_state"}));
+            (std::vector<std::string>{"events", "loop_state", "zone_hours", "zone_samples", "zone_state"}));
   EXPECT_EQ(db.texts("SELECT name FROM sqlite_schema WHERE type = 'index' AND sql IS NOT NULL ORDER BY name"),
-            (std::vector<std::string>{"events_by_kind_ts", "events_by_subject_ts", "events_by_ts",
-                                      "zone_samples_by_minute"}));
-  EXPECT_EQ(db.integer("SELECT count(*) FROM pragma_index_list('zone_samples') WHERE origin = 'pk'"), 1)
-      << "primary key (zone, minute_ms)";
+            (std::vector<std::string>{"events_by_kind_ts", "events_by_subject_ts", "events_by_ts"}));
+  EXPECT_EQ(db.texts("SELECT name FROM pragma_index_info((SELECT name FROM pragma_index_list('zone_samples') "
+                     "WHERE origin = 'pk'))"),
+            (std::vector<std::string>{"minute_ms", "zone"}))
+      << "clustered by time: primary key (minute_ms, zone), WITHOUT ROWID";
+  EXPECT_EQ(db.integer("SELECT count(*) FROM sqlite_schema WHERE name = 'zone_samples' AND sql LIKE '%WITHOUT ROWID%'"),
+            1);
 }
 
 TEST(StoreSchema, ReopensItsOwnFileKeepingRows) {
@@ -139,7 +143,7 @@ TEST(StoreSchema, RefusesANewerVersionForWritingAndReading) {
   auto w = store_writer::open(store_test::test_options(file, errors));
   ASSERT_FALSE(w.ok());
   EXPECT_EQ(w.err().kind, store_error_kind::schema_too_new);
-  EXPECT_TRUE(contains(w.err().message, file.string() + ": schema version 99 is newer than this program knows (1)"))
+  EXPECT_TRUE(contains(w.err().message, file.string() + ": schema version 99 is newer than this program knows (2)"))
       << w.err().message;
   auto r = history_reader::open(file);
   ASSERT_FALSE(r.ok());
@@ -148,7 +152,20 @@ TEST(StoreSchema, RefusesANewerVersionForWritingAndReading) {
   EXPECT_EQ(db.integer("PRAGMA user_version"), 99) << "a newer file is left alone";
 }
 
-TEST(StoreSchema, ReaderRefusesAnOlderVersionItCannotMigrate) {
+TEST(StoreSchema, ReaderRefusesAnOlderVersionItCannotRead) {
+  temp_dir dir;
+  const auto file = dir.file("history.db");
+  {
+    raw_db db(file);
+    ASSERT_EQ(db.exec("PRAGMA application_id = 1148669287; CREATE TABLE t (x); PRAGMA user_version = 0"), SQLITE_OK);
+  }
+  auto r = history_reader::open(file);
+  ASSERT_FALSE(r.ok());
+  EXPECT_EQ(r.err().kind, store_error_kind::schema_too_old);
+  EXPECT_TRUE(contains(r.err().message, "schema version 0 is older than this program's (2)")) << r.err().message;
+}
+
+TEST(StoreSchema, ReaderReadsAVersion1FileAsItIs) {
   temp_dir dir;
   const auto file = dir.file("history.db");
   const auto& v1 = store_detail::schema_migrations().at(0);
@@ -156,10 +173,48 @@ TEST(StoreSchema, ReaderRefusesAnOlderVersionItCannotMigrate) {
     auto db = open_history_db(file, open_mode::read_write, open_settings{}, {v1});
     ASSERT_TRUE(db.ok()) << db.err().message;
   }
-  auto r = open_history_db(file, open_mode::read_only, open_settings{}, {v1, {2, "CREATE TABLE x (y);"}});
-  ASSERT_FALSE(r.ok());
-  EXPECT_EQ(r.err().kind, store_error_kind::schema_too_old);
-  EXPECT_TRUE(contains(r.err().message, "schema version 1 is older than this program's (2)")) << r.err().message;
+  {
+    raw_db db(file);
+    // 2026-07-14T13:00:00Z; 24 °C, 50 %, surface 18 °C.
+    ASSERT_EQ(db.exec("INSERT INTO zone_samples VALUES ('z1', 1784034000000, 5.0, 12.9, 'safe', 24.0, 50.0, 18.0, 16.0)"),
+              SQLITE_OK);
+  }
+  auto r = history_reader::open(file);
+  ASSERT_TRUE(r.ok()) << r.err().message;
+  EXPECT_EQ(r.value().schema_version(), 1);
+  std::vector<zone_period> periods;
+  auto n = r.value().for_each_period({}, [&](const zone_period& p) { periods.push_back(p); });
+  ASSERT_TRUE(n.ok()) << n.err().message;
+  ASSERT_EQ(periods.size(), 1u);
+  EXPECT_EQ(periods[0].zone, "z1");
+  ASSERT_TRUE(periods[0].max_surface_rh_pct.has_value()) << "computed from air, RH and surface";
+  EXPECT_NEAR(*periods[0].max_surface_rh_pct, psychro::surface_rh_pct(24.0, 50.0, 18.0).value(), 1e-9);
+  raw_db db(file);
+  EXPECT_EQ(db.integer("PRAGMA user_version"), 1) << "the reader never migrates";
+}
+
+TEST(StoreSchema, Version2MigrationKeepsTheSamples) {
+  temp_dir dir;
+  const auto file = dir.file("history.db");
+  const auto& v1 = store_detail::schema_migrations().at(0);
+  {
+    auto db = open_history_db(file, open_mode::read_write, open_settings{}, {v1});
+    ASSERT_TRUE(db.ok()) << db.err().message;
+  }
+  {
+    raw_db db(file);
+    ASSERT_EQ(db.exec("INSERT INTO zone_samples VALUES ('z1', 60000, 1.5, 14.0, 'tight', 24.0, 60.0, 16.0, 15.0),"
+                      "('z0', 120000, NULL, NULL, 'unknown', NULL, NULL, NULL, NULL)"),
+              SQLITE_OK);
+  }
+  create_with_writer(file);
+  raw_db db(file);
+  EXPECT_EQ(db.integer("PRAGMA user_version"), 2);
+  EXPECT_EQ(db.texts("SELECT zone || ' ' || minute_ms || ' ' || worst_band || ' ' || coalesce(min_margin_k, 'null') "
+                     "|| ' ' || coalesce(surface_rh_pct, 'null') FROM zone_samples ORDER BY minute_ms"),
+            (std::vector<std::string>{"z1 60000 tight 1.5 null", "z0 120000 unknown null null"}));
+  EXPECT_EQ(db.integer("SELECT count(*) FROM sqlite_schema WHERE name IN ('zone_samples_v1', 'zone_samples_by_minute')"),
+            0);
 }
 
 struct foreign_case {

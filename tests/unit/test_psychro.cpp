@@ -350,5 +350,70 @@ TEST(Psychro, HumidityRatioRejectsBadPressure) {
   EXPECT_EQ(humidity_ratio_kg_per_kg(61.0, 50.0).err().code, error_code::out_of_range);
 }
 
+// ---------------------------------------------------------------------------------------------
+// Surface relative humidity (the quantity of the mould criterion, EN ISO 13788 as summarised in
+// BS 5250 Annex D). Source: ASHRAE Handbook—Fundamentals (2017) ch. 1 through psychrolib 1.1.1
+// (npm): tests/data/reference/psychrolib_surface_rh.csv, made by
+// tests/reference/psychrolib/generate.js as 100 · min(1, GetVapPresFromRelHum / GetSatVapPres).
+// Both sides take a ratio of two saturation pressures at nearby temperatures, so the
+// Magnus-vs-Hyland–Wexler differences largely cancel: tolerance 0.3 % RH (absolute).
+
+TEST(Psychro, SurfaceRhAgreesWithPsychrolib) {
+  const std::string path = std::string(DEWMARGIN_TEST_DATA_DIR) + "/reference/psychrolib_surface_rh.csv";
+  std::ifstream in(path);
+  ASSERT_TRUE(in.good()) << "cannot open " << path;
+  std::string line;
+  bool header_seen = false;
+  std::size_t compared = 0;
+  std::size_t capped = 0;
+  double worst_pct = 0.0;
+  while (std::getline(in, line)) {
+    if (line.empty() || line[0] == '#') continue;
+    if (!header_seen) {
+      ASSERT_EQ(line, "psychrolib_version,t_c,rh_pct,surface_c,surface_rh_pct") << path;
+      header_seen = true;
+      continue;
+    }
+    std::vector<std::string> f;
+    std::stringstream ss(line);
+    for (std::string field; std::getline(ss, field, ',');) f.push_back(field);
+    ASSERT_EQ(f.size(), 5u) << line;
+    EXPECT_EQ(f[0], "1.1.1");
+    const double t_c = std::stod(f[1]);
+    const double rh_pct = std::stod(f[2]);
+    const double surface_c = std::stod(f[3]);
+    const double expected_pct = std::stod(f[4]);
+    const auto got = surface_rh_pct(t_c, rh_pct, surface_c);
+    ASSERT_TRUE(got.ok()) << line << ": " << got.err().message;
+    if (expected_pct >= 100.0) ++capped;  // at or below the dew point: saturated on both sides
+    EXPECT_NEAR(got.value(), expected_pct, 0.3) << line;
+    EXPECT_LE(got.value(), 100.0) << line;
+    worst_pct = std::max(worst_pct, std::abs(got.value() - expected_pct));
+    ++compared;
+  }
+  EXPECT_EQ(compared, 210u) << "5 air temperatures × 6 RH values × 7 surface temperatures";
+  EXPECT_GT(capped, 0u) << "the grid reaches surfaces below the dew point";
+  std::cout << "[ psychrolib ] surface RH: " << compared << " rows, largest difference " << worst_pct << " % RH\n";
+}
+
+TEST(Psychro, SurfaceRhOfTheAirItselfIsItsRh) {
+  // Definition: at the air temperature the surface RH is the air's RH (common practice, no source).
+  for (double rh : {20.0, 50.0, 80.0, 100.0}) {
+    EXPECT_NEAR(surface_rh_pct(24.0, rh, 24.0).value(), rh, 1e-9);
+  }
+  // At the dew point the surface is saturated, below it capped at 100 %.
+  const double td = dew_point_c(24.0, 50.0).value();
+  EXPECT_NEAR(surface_rh_pct(24.0, 50.0, td).value(), 100.0, 1e-9);
+  EXPECT_EQ(surface_rh_pct(24.0, 50.0, td - 3.0).value(), 100.0);
+}
+
+TEST(Psychro, SurfaceRhRejectsBadInputs) {
+  EXPECT_EQ(surface_rh_pct(24.0, 50.0, k_nan).err().code, error_code::not_finite);
+  EXPECT_EQ(surface_rh_pct(24.0, 50.0, -46.0).err().code, error_code::out_of_range);
+  EXPECT_EQ(surface_rh_pct(24.0, 0.0, 18.0).err().code, error_code::out_of_range);
+  EXPECT_EQ(surface_rh_pct(61.0, 50.0, 18.0).err().code, error_code::out_of_range);
+  EXPECT_EQ(surface_rh_pct(k_inf, 50.0, 18.0).err().code, error_code::not_finite);
+}
+
 }  // namespace
 }  // namespace dewmargin::psychro

@@ -1,5 +1,7 @@
 // `dewmargin history`: prints the event log of a history database (read-only, so it works
-// while the service writes). Formats: table (terminal), csv (RFC 4180), json (one array).
+// while the service writes). Formats: table (terminal), csv (RFC 4180), json (one object per
+// line). Rows are streamed from the database as they are read: a year of events is never held
+// in memory. The table reads the rows twice (column widths first, then the rows).
 #include <algorithm>
 #include <array>
 #include <chrono>
@@ -56,12 +58,12 @@ int run_history(const history_options& o, std::ostream& out, std::ostream& err) 
   }
   event_filter filter;
   if (!o.zone.empty()) filter.subject_id = o.zone;
-  if (!o.kind.empty()) {
-    if (!parse_event_kind(o.kind)) {
-      err << k_prog << "--kind '" << o.kind << "' is not an event kind (" << event_kind_list() << ")\n";
+  for (const auto& kind : o.kinds) {
+    if (!parse_event_kind(kind)) {
+      err << k_prog << "--kind '" << kind << "' is not an event kind (" << event_kind_list() << ")\n";
       return k_exit_usage;
     }
-    filter.kind = o.kind;
+    if (std::find(filter.kinds.begin(), filter.kinds.end(), kind) == filter.kinds.end()) filter.kinds.push_back(kind);
   }
   if (!o.since_text.empty()) {
     const auto since = parse_iso8601(o.since_text);
@@ -95,42 +97,52 @@ int run_history(const history_options& o, std::ostream& out, std::ostream& err) 
     return k_exit_runtime;
   }
 
-  std::vector<std::int64_t> invalid_ids;
-  std::vector<std::array<std::string, 5>> table_rows;  // time, subject, kind, from → to, details
-  std::size_t json_rows = 0;
-  if (o.format == "csv") out << csv_record({"ts", "subject_type", "subject", "kind", "from", "to", "details"});
-  if (o.format == "json") out << '[';
-
-  const auto visited = reader.value().for_each_event(filter, [&](const stored_event& e) {
-    const event_columns c = event_columns_of(e);
-    if (!c.json_valid) invalid_ids.push_back(e.id);
-    if (o.format == "csv") {
+  std::size_t invalid_count = 0;
+  std::int64_t first_invalid_id = 0;
+  const auto note_invalid = [&](const stored_event& e, const event_columns& c) {
+    if (c.json_valid) return;
+    if (invalid_count++ == 0) first_invalid_id = e.id;
+  };
+  store_result<std::size_t> visited = std::size_t{0};
+  if (o.format == "csv") {
+    out << csv_record({"ts", "subject_type", "subject", "kind", "from", "to", "details"});
+    visited = reader.value().for_each_event(filter, [&](const stored_event& e) {
+      const event_columns c = event_columns_of(e);
+      note_invalid(e, c);
       out << csv_record({c.ts, c.subject_type, c.subject, c.kind, c.from, c.to, c.details_json});
-    } else if (o.format == "json") {
-      out << (json_rows++ == 0 ? "\n" : ",\n") << json_text(e, c);
-    } else {
-      table_rows.push_back({c.ts, subject_text(c), c.kind, transition_text(c), c.details_text});
-    }
-  });
-
-  if (o.format == "json") out << (json_rows == 0 ? "]\n" : "\n]\n");
-  if (o.format == "table") {
-    const bool filtered = filter.subject_id || filter.kind || filter.since || filter.until;
-    if (table_rows.empty() && visited.ok()) {
+    });
+  } else if (o.format == "json") {
+    visited = reader.value().for_each_event(filter, [&](const stored_event& e) {
+      const event_columns c = event_columns_of(e);
+      note_invalid(e, c);
+      out << json_text(e, c) << '\n';
+    });
+  } else {
+    using row = std::array<std::string, 5>;  // time, subject, kind, from → to, details
+    const auto row_of = [](const event_columns& c) -> row {
+      return {c.ts, subject_text(c), c.kind, transition_text(c), c.details_text};
+    };
+    const row header = {"TIME (UTC)", "SUBJECT", "KIND", "FROM → TO", "DETAILS"};
+    std::array<std::size_t, 5> width{};
+    for (std::size_t col = 0; col < width.size(); ++col) width[col] = display_width(header[col]);
+    visited = reader.value().for_each_event(filter, [&](const stored_event& e) {
+      const row r = row_of(event_columns_of(e));
+      for (std::size_t col = 0; col < width.size(); ++col) width[col] = std::max(width[col], display_width(r[col]));
+    });
+    const auto print_row = [&](const row& r) {
+      for (std::size_t col = 0; col + 1 < r.size(); ++col) pad(out, r[col], width[col] + 2);
+      out << r.back() << '\n';
+    };
+    if (visited.ok() && visited.value() == 0) {
+      const bool filtered = filter.subject_id || !filter.kinds.empty() || filter.since || filter.until;
       out << (filtered ? "no events match the filters\n" : "no events\n");
-    } else if (!table_rows.empty()) {
-      const std::array<std::string, 5> header = {"TIME (UTC)", "SUBJECT", "KIND", "FROM → TO", "DETAILS"};
-      std::array<std::size_t, 5> width{};
-      for (std::size_t col = 0; col < width.size(); ++col) width[col] = display_width(header[col]);
-      for (const auto& row : table_rows) {
-        for (std::size_t col = 0; col < width.size(); ++col) width[col] = std::max(width[col], display_width(row[col]));
-      }
-      const auto print_row = [&](const std::array<std::string, 5>& row) {
-        for (std::size_t col = 0; col + 1 < row.size(); ++col) pad(out, row[col], width[col] + 2);
-        out << row.back() << '\n';
-      };
+    } else if (visited.ok()) {
       print_row(header);
-      for (const auto& row : table_rows) print_row(row);
+      visited = reader.value().for_each_event(filter, [&](const stored_event& e) {
+        const event_columns c = event_columns_of(e);
+        note_invalid(e, c);
+        print_row(row_of(c));
+      });
     }
   }
   out.flush();
@@ -139,9 +151,9 @@ int run_history(const history_options& o, std::ostream& out, std::ostream& err) 
     err << visited.err().message << '\n';
     return k_exit_runtime;
   }
-  if (!invalid_ids.empty()) {
-    err << o.db << ": " << invalid_ids.size() << " stored event(s) are not valid JSON objects (first id "
-        << invalid_ids.front() << "); shown as stored\n";
+  if (invalid_count > 0) {
+    err << o.db << ": " << invalid_count << " stored event(s) are not valid JSON objects (first id "
+        << first_invalid_id << "); shown as stored\n";
     return k_exit_runtime;
   }
   return k_exit_ok;

@@ -4,6 +4,7 @@
 #include <iosfwd>
 #include <optional>
 #include <string>
+#include <vector>
 
 namespace dewmargin::cli {
 
@@ -39,9 +40,20 @@ struct history_options {
   std::string zone;
   std::string since_text;
   std::string until_text;
-  std::string kind;
+  std::vector<std::string> kinds;  // --kind, repeated or comma-separated; empty: every kind
   std::string format = "table";  // table | csv | json
 };
 int run_history(const history_options& options, std::ostream& out, std::ostream& err);
+
+// `dewmargin report`: a self-contained HTML review of a history database.
+struct report_options {
+  std::string db;
+  std::string out;
+  std::string config_file;  // optional: thresholds, loops, site name
+  std::string since_text;
+  std::string until_text;
+  std::vector<std::string> zones;
+};
+int run_report(const report_options& options, std::ostream& out, std::ostream& err);
 
 }  // namespace dewmargin::cli

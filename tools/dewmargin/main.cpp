@@ -28,7 +28,8 @@ int main(int argc, char** argv) {
                          "  dewmargin dewpoint --temp 24 --rh 50\n"
                          "  dewmargin check /etc/dewmargin/dewmargin.yaml\n"
                          "  dewmargin replay --config site.yaml --readings readings.csv\n"
-                         "  dewmargin history --db /var/lib/dewmargin/history.db --zone level2-east --since 2026-07-14\n\n") +
+                         "  dewmargin history --db /var/lib/dewmargin/history.db --zone level2-east --since 2026-07-14\n"
+                         "  dewmargin report --db /var/lib/dewmargin/history.db --config site.yaml --out review.html\n\n") +
              k_caution);
   app.require_subcommand(1);
   app.set_version_flag("--version", std::string("dewmargin ") + dewmargin::k_version);
@@ -77,7 +78,9 @@ int main(int argc, char** argv) {
   history->add_option("--since", hist.since_text, "Only events at or after TIME")->type_name("TIME");
   history->add_option("--until", hist.until_text, "Only events before TIME; a bare date means up to the end of that day")
       ->type_name("TIME");
-  history->add_option("--kind", hist.kind, "Only events of this kind: " + dewmargin::event_kind_list())
+  history->add_option("--kind", hist.kinds,
+                      "Only events of these kinds (repeat it, or a comma list): " + dewmargin::event_kind_list())
+      ->delimiter(',')
       ->type_name("KIND");
   history->add_option("--format", hist.format, "table (default), csv or json")->type_name("FORMAT");
   history->footer(std::string(
@@ -89,15 +92,49 @@ int main(int argc, char** argv) {
                       "  table  aligned columns: time, subject, kind, from → to, details (key=value)\n"
                       "  csv    RFC 4180 with CRLF line ends; header ts,subject_type,subject,kind,from,to,details;\n"
                       "         details is a JSON object of the event's other fields\n"
-                      "  json   one JSON array of the stored event objects (as published), one per line\n"
-                      "Events are ordered by time, then by the order they were stored.\n\n"
+                      "  json   one stored event object (as published) per line (JSON Lines)\n"
+                      "Events are ordered by time, then by the order they were stored, and streamed: a year of\n"
+                      "events is never held in memory.\n\n"
                       "Exit codes: 0 ok, also when nothing matches (table: \"no events\", csv: the header only,\n"
-                      "json: []); 1 the database is missing, unreadable, corrupt, not a dewmargin history\n"
+                      "json: nothing); 1 the database is missing, unreadable, corrupt, not a dewmargin history\n"
                       "database, or of a newer schema; 2 bad usage (bad TIME, unknown kind or format).\n\n"
                       "Example:\n"
                       "  dewmargin history --db /var/lib/dewmargin/history.db --kind band --since 2026-07-01 --format csv\n\n") +
                   k_caution);
   history->callback([&] { exit_code = run_history(hist, std::cout, std::cerr); });
+
+  report_options rep;
+  auto* report = app.add_subcommand("report", "Write a self-contained HTML review of a history database");
+  report->add_option("--db", rep.db, "History database (SQLite); opened read-only")->required()->type_name("FILE");
+  report->add_option("--out", rep.out, "The HTML file to write (replaced whole)")->required()->type_name("FILE.html");
+  report->add_option("--config", rep.config_file,
+                     "Site config: thresholds, loops and site name for the page (optional)")
+      ->type_name("FILE");
+  report->add_option("--since", rep.since_text, "Start of the period (default: the first stored row)")
+      ->type_name("TIME");
+  report->add_option("--until", rep.until_text,
+                     "End of the period, exclusive; a bare date includes that day (default: the last stored row)")
+      ->type_name("TIME");
+  report->add_option("--zone", rep.zones, "Only these zones (repeat it, or a comma list)")
+      ->delimiter(',')
+      ->type_name("ID");
+  report->footer(std::string("\n"
+                             "The page holds: a verdict; thresholds in force (with --config); alarm-system figures\n"
+                             "beside the ISA-18.2 / EEMUA 191 targets; mould risk (surface RH >= 80 %); per loop the\n"
+                             "setpoint, supply and what limited it; per zone the margin timeline with bands, acks,\n"
+                             "shelving and valve actions, dew point and coldest surface, and a table of band times,\n"
+                             "worst margin, alarms, time to acknowledge, condensing episodes with their warning time\n"
+                             "and stale-input time. Inline CSS and SVG only: it opens and prints anywhere (A4).\n"
+                             "\n"
+                             "Exit codes: 0 written; 1 the database is missing, unreadable or holds nothing for the\n"
+                             "period, or the file cannot be written; 2 bad usage or a bad config.\n"
+                             "\n"
+                             "Example:\n"
+                             "  dewmargin report --db /var/lib/dewmargin/history.db --config /etc/dewmargin/dewmargin.yaml \\\n"
+                             "      --since 2026-07-01 --until 2026-07-31 --out july.html\n"
+                             "\n") +
+                 k_caution);
+  report->callback([&] { exit_code = run_report(rep, std::cout, std::cerr); });
 
   // watch: live margins from the retained state topics (tools/dewmargin/watch/).
   watch_options watch_opts;

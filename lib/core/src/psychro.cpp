@@ -101,4 +101,18 @@ result<double> humidity_ratio_kg_per_kg(double t_c, double rh_pct, double pressu
   return 0.621945 * e_kpa / (pressure_kpa - e_kpa);
 }
 
+result<double> surface_rh_pct(double air_temp_c, double rh_pct, double surface_c, const magnus_coefficients& k) {
+  auto rh = normalise_rh_pct(rh_pct);
+  if (!rh) return rh.err();
+  auto es_air = saturation_vapour_pressure_hpa(air_temp_c, k);
+  if (!es_air) return es_air.err();
+  if (!std::isfinite(surface_c)) return make_error(error_code::not_finite, "surface temperature is not a finite number");
+  if (surface_c < k_min_air_temp_c || surface_c > k_max_air_temp_c) {
+    return make_error(error_code::out_of_range,
+                      format_value("surface temperature", surface_c) + " °C is outside the valid range -45 to 60 °C");
+  }
+  const double es_surface = k.c_hpa * std::exp(k.a * surface_c / (k.b_c + surface_c));
+  return std::min(100.0, 100.0 * (rh.value() / 100.0 * es_air.value()) / es_surface);
+}
+
 }  // namespace dewmargin::psychro

@@ -1,10 +1,12 @@
 #include "dewmargin/history_reader.h"
 
+#include <algorithm>
 #include <utility>
 #include <variant>
 #include <vector>
 
 #include "migrations.h"
+#include "period_rows.h"
 #include "sqlite_handle.h"
 
 namespace dewmargin {
@@ -23,11 +25,6 @@ std::optional<subject_type> subject_type_from(const std::string& text) {
   return std::nullopt;
 }
 
-std::optional<double> column_optional_double(sqlite3_stmt* stmt, int column) {
-  if (sqlite3_column_type(stmt, column) == SQLITE_NULL) return std::nullopt;
-  return sqlite3_column_double(stmt, column);
-}
-
 // "WHERE a = ?1 AND b >= ?2" from the conditions that are set, with the values to bind.
 class where_clause {
  public:
@@ -37,6 +34,17 @@ class where_clause {
     sql_ += condition;
     sql_ += " ?" + std::to_string(params_.size() + 1);
     params_.push_back(std::move(value));
+  }
+  // "column IN (?n, ?n+1, ...)"
+  void add_in(const char* column, const std::vector<std::string>& values) {
+    sql_ += params_.empty() ? " WHERE " : " AND ";
+    sql_ += column;
+    sql_ += " IN (";
+    for (std::size_t i = 0; i < values.size(); ++i) {
+      sql_ += (i > 0 ? ", ?" : "?") + std::to_string(params_.size() + 1);
+      params_.emplace_back(values[i]);
+    }
+    sql_ += ")";
   }
   [[nodiscard]] const std::string& sql() const { return sql_; }
   void bind(const statement& stmt) const {
@@ -59,7 +67,8 @@ class where_clause {
 
 class history_reader::impl {
  public:
-  impl(std::filesystem::path file, connection db) : file_(std::move(file)), db_(std::move(db)) {}
+  impl(std::filesystem::path file, connection db, int version)
+      : file_(std::move(file)), db_(std::move(db)), version_(version) {}
 
   store_error failure(const std::string& what, int rc) const {
     const auto kind = (rc & 0xff) == SQLITE_CORRUPT ? store_error_kind::corrupt : store_error_kind::sqlite_failure;
@@ -67,14 +76,16 @@ class history_reader::impl {
   }
 
   store_result<std::size_t> for_each_event(const event_filter& f,
-                                           const std::function<void(const stored_event&)>& visit) const {
+                                           const std::function<void(const stored_event&)>& visit,
+                                           bool latest_only = false) const {
     where_clause where;
     if (f.subject_id) where.add("subject_id =", *f.subject_id);
-    if (f.kind) where.add("kind =", *f.kind);
+    if (!f.kinds.empty()) where.add_in("kind", f.kinds);
     if (f.since) where.add("ts_ms >=", to_unix_ms(*f.since));
     if (f.until) where.add("ts_ms <", to_unix_ms(*f.until));
     const std::string sql =
-        "SELECT id, ts_ms, subject_type, subject_id, kind, json FROM events" + where.sql() + " ORDER BY ts_ms, id";
+        "SELECT id, ts_ms, subject_type, subject_id, kind, json FROM events" + where.sql() +
+        (latest_only ? " ORDER BY ts_ms DESC, id DESC LIMIT 1" : " ORDER BY ts_ms, id");
     statement stmt;
     int rc = statement::prepare(db_.get(), sql, stmt);
     if (rc != SQLITE_OK) return failure("querying events", rc);
@@ -109,32 +120,92 @@ class history_reader::impl {
     if (f.since) where.add("minute_ms >=", to_unix_ms(*f.since));
     if (f.until) where.add("minute_ms <", to_unix_ms(*f.until));
     const std::string sql =
-        "SELECT zone, minute_ms, min_margin_k, max_dew_point_c, worst_band, air_temp_c, rh_pct, surface_min_c, "
-        "supply_c FROM zone_samples" +
-        where.sql() + " ORDER BY zone, minute_ms";
+        "SELECT " + store_detail::minute_columns(version_) + " FROM zone_samples" + where.sql() + " ORDER BY zone, minute_ms";
     statement stmt;
     int rc = statement::prepare(db_.get(), sql, stmt);
     if (rc != SQLITE_OK) return failure("querying samples", rc);
     where.bind(stmt);
     std::size_t count = 0;
     zone_sample row;
+    zone_period unused;
     while ((rc = sqlite3_step(stmt.get())) == SQLITE_ROW) {
-      sqlite3_stmt* s = stmt.get();
-      row.zone = column_text(s, 0);
-      row.minute_start = from_unix_ms(sqlite3_column_int64(s, 1));
-      row.min_margin_k = column_optional_double(s, 2);
-      row.max_dew_point_c = column_optional_double(s, 3);
-      row.worst_band = column_text(s, 4);
-      row.air_temp_c = column_optional_double(s, 5);
-      row.rh_pct = column_optional_double(s, 6);
-      row.surface_min_c = column_optional_double(s, 7);
-      row.supply_c = column_optional_double(s, 8);
+      store_detail::read_minute_row(stmt.get(), row, unused);
       visit(row);
       ++count;
     }
     if (rc != SQLITE_DONE) return failure("reading samples", rc);
     return count;
   }
+
+  store_result<std::size_t> for_each_period(const sample_filter& f,
+                                            const std::function<void(const zone_period&)>& visit) const {
+    std::size_t count = 0;
+    zone_period period;
+    if (version_ >= 2) {
+      where_clause where;
+      if (f.zone) where.add("zone =", *f.zone);
+      if (f.since) where.add("hour_ms >", to_unix_ms(*f.since) - store_detail::k_ms_per_hour);
+      if (f.until) where.add("hour_ms <", to_unix_ms(*f.until));
+      const std::string sql = std::string("SELECT ") + store_detail::k_hour_columns + " FROM zone_hours" + where.sql() +
+                              " ORDER BY hour_ms, zone";
+      statement stmt;
+      int rc = statement::prepare(db_.get(), sql, stmt);
+      if (rc != SQLITE_OK) return failure("querying hourly roll-ups", rc);
+      where.bind(stmt);
+      while ((rc = sqlite3_step(stmt.get())) == SQLITE_ROW) {
+        store_detail::read_hour_row(stmt.get(), period);
+        visit(period);
+        ++count;
+      }
+      if (rc != SQLITE_DONE) return failure("reading hourly roll-ups", rc);
+    }
+    where_clause where;
+    if (f.zone) where.add("zone =", *f.zone);
+    if (f.since) where.add("minute_ms >=", to_unix_ms(*f.since));
+    if (f.until) where.add("minute_ms <", to_unix_ms(*f.until));
+    // Version 1 is clustered by zone: ordering by time there costs a sort, which SQLite does
+    // in temporary storage, not in our memory.
+    const std::string sql = "SELECT " + store_detail::minute_columns(version_) + " FROM zone_samples" + where.sql() +
+                            " ORDER BY minute_ms, zone";
+    statement stmt;
+    int rc = statement::prepare(db_.get(), sql, stmt);
+    if (rc != SQLITE_OK) return failure("querying samples", rc);
+    where.bind(stmt);
+    zone_sample scratch;
+    while ((rc = sqlite3_step(stmt.get())) == SQLITE_ROW) {
+      store_detail::read_minute_row(stmt.get(), scratch, period);
+      visit(period);
+      ++count;
+    }
+    if (rc != SQLITE_DONE) return failure("reading samples", rc);
+    return count;
+  }
+
+  store_result<std::optional<time_span>> stored_span() const {
+    std::vector<std::string> queries = {"SELECT min(ts_ms), max(ts_ms) FROM events",
+                                        "SELECT min(minute_ms), max(minute_ms) + 60000 FROM zone_samples"};
+    if (version_ >= 2) queries.emplace_back("SELECT min(hour_ms), max(hour_ms) + 3600000 FROM zone_hours");
+    std::optional<time_span> span;
+    for (const auto& sql : queries) {
+      statement stmt;
+      int rc = statement::prepare(db_.get(), sql, stmt);
+      if (rc != SQLITE_OK) return failure("querying the stored time span", rc);
+      rc = sqlite3_step(stmt.get());
+      if (rc != SQLITE_ROW) return failure("reading the stored time span", rc);
+      if (sqlite3_column_type(stmt.get(), 0) == SQLITE_NULL) continue;
+      const timestamp first = from_unix_ms(sqlite3_column_int64(stmt.get(), 0));
+      const timestamp last = from_unix_ms(sqlite3_column_int64(stmt.get(), 1));
+      if (!span) {
+        span = time_span{first, last};
+      } else {
+        span->first = std::min(span->first, first);
+        span->last = std::max(span->last, last);
+      }
+    }
+    return span;
+  }
+
+  int version() const { return version_; }
 
   store_result<restored_state> load_restored_state() const {
     sqlite3* db = db_.get();
@@ -185,12 +256,19 @@ class history_reader::impl {
  private:
   std::filesystem::path file_;
   connection db_;
+  int version_;
 };
 
 store_result<history_reader> history_reader::open(const std::filesystem::path& file) {
   auto db = store_detail::open_history_db(file, store_detail::open_mode::read_only, store_detail::open_settings{});
   if (!db.ok()) return db.err();
-  return history_reader(std::make_unique<impl>(file, std::move(db).value()));
+  std::int64_t version = 0;
+  const int rc = store_detail::query_int64(db.value().get(), "PRAGMA user_version", version);
+  if (rc != SQLITE_OK) {
+    return store_error{store_error_kind::sqlite_failure,
+                       file.string() + ": reading user_version: " + describe(db.value().get(), rc)};
+  }
+  return history_reader(std::make_unique<impl>(file, std::move(db).value(), static_cast<int>(version)));
 }
 
 history_reader::history_reader(std::unique_ptr<impl> p) : impl_(std::move(p)) {}
@@ -210,6 +288,13 @@ store_result<std::vector<stored_event>> history_reader::events(const event_filte
   return rows;
 }
 
+store_result<std::optional<stored_event>> history_reader::last_event(const event_filter& filter) const {
+  std::optional<stored_event> last;
+  auto r = impl_->for_each_event(filter, [&](const stored_event& e) { last = e; }, true);
+  if (!r.ok()) return r.err();
+  return last;
+}
+
 store_result<std::size_t> history_reader::for_each_sample(const sample_filter& filter,
                                                           const std::function<void(const zone_sample&)>& visit) const {
   return impl_->for_each_sample(filter, visit);
@@ -221,6 +306,17 @@ store_result<std::vector<zone_sample>> history_reader::samples(const sample_filt
   if (!r.ok()) return r.err();
   return rows;
 }
+
+store_result<std::size_t> history_reader::for_each_period(const sample_filter& filter,
+                                                          const std::function<void(const zone_period&)>& visit) const {
+  return impl_->for_each_period(filter, visit);
+}
+
+store_result<std::optional<history_reader::time_span>> history_reader::stored_span() const {
+  return impl_->stored_span();
+}
+
+int history_reader::schema_version() const { return impl_->version(); }
 
 store_result<restored_state> history_reader::load_restored_state() const { return impl_->load_restored_state(); }
 

@@ -1,5 +1,6 @@
 #include "migrations.h"
 
+#include <algorithm>
 #include <cstdio>
 #include <optional>
 #include <string>
@@ -50,6 +51,65 @@ CREATE TABLE loop_state (
   setpoint_c REAL NOT NULL,
   ts_ms INTEGER NOT NULL
 );
+)sql";
+
+// Version 2 (issue 12: reports over long periods, bounded storage).
+// - zone_samples is clustered by time, (minute_ms, zone) WITHOUT ROWID: the writer appends at the
+//   end, retention and the hourly roll-up take from the front, and a report reads one range in
+//   one pass. It needs no second index (v1 had two: its primary key and minute_ms).
+// - surface_rh_pct: the room air's RH at the coldest surface (NULL until the engine fills it; the
+//   readers compute it from air temperature, RH and coldest surface then).
+// - zone_hours: per-minute samples older than keep_minute_samples_days, rolled up per zone and
+//   hour (see dewmargin/zone_period.h for what each column keeps).
+// Old rows are copied in this one transaction; a v1 file of 400 days and 200 zones takes minutes.
+constexpr std::string_view k_schema_v2 = R"sql(
+ALTER TABLE zone_samples RENAME TO zone_samples_v1;
+CREATE TABLE zone_samples (
+  minute_ms INTEGER NOT NULL,
+  zone TEXT NOT NULL,
+  min_margin_k REAL,
+  max_dew_point_c REAL,
+  worst_band TEXT NOT NULL,
+  air_temp_c REAL,
+  rh_pct REAL,
+  surface_min_c REAL,
+  supply_c REAL,
+  surface_rh_pct REAL,
+  PRIMARY KEY (minute_ms, zone)
+) WITHOUT ROWID;
+INSERT INTO zone_samples (minute_ms, zone, min_margin_k, max_dew_point_c, worst_band, air_temp_c, rh_pct,
+                          surface_min_c, supply_c)
+  SELECT minute_ms, zone, min_margin_k, max_dew_point_c, worst_band, air_temp_c, rh_pct, surface_min_c, supply_c
+  FROM zone_samples_v1;
+DROP TABLE zone_samples_v1;
+CREATE TABLE zone_hours (
+  hour_ms INTEGER NOT NULL,
+  zone TEXT NOT NULL,
+  sample_minutes INTEGER NOT NULL,
+  min_margin_k REAL,
+  min_margin_at_ms INTEGER,
+  max_margin_k REAL,
+  mean_margin_k REAL,
+  max_dew_point_c REAL,
+  mean_dew_point_c REAL,
+  min_surface_c REAL,
+  mean_surface_c REAL,
+  mean_air_temp_c REAL,
+  mean_rh_pct REAL,
+  mean_supply_c REAL,
+  max_surface_rh_pct REAL,
+  mean_surface_rh_pct REAL,
+  safe_min INTEGER NOT NULL,
+  tight_min INTEGER NOT NULL,
+  alarm_min INTEGER NOT NULL,
+  condensing_min INTEGER NOT NULL,
+  unknown_min INTEGER NOT NULL,
+  mould_min INTEGER NOT NULL,
+  mould_head_min INTEGER NOT NULL,
+  mould_tail_min INTEGER NOT NULL,
+  mould_longest_min INTEGER NOT NULL,
+  PRIMARY KEY (hour_ms, zone)
+) WITHOUT ROWID;
 )sql";
 
 std::string hex_id(std::int64_t id) {
@@ -125,7 +185,7 @@ std::optional<store_error> apply_step(const std::filesystem::path& file, sqlite3
 }  // namespace
 
 const std::vector<migration>& schema_migrations() {
-  static const std::vector<migration> k_migrations{{1, k_schema_v1}};
+  static const std::vector<migration> k_migrations{{1, k_schema_v1}, {2, k_schema_v2}};
   return k_migrations;
 }
 
@@ -188,11 +248,17 @@ store_result<connection> open_history_db(const std::filesystem::path& file, open
                     std::to_string(target_version) + "); use the dewmargin release that wrote it, or a newer one");
   }
   if (read_only) {
-    if (version < target_version) {
+    // Readers know every version from k_store_min_readable_version on (history_reader asks the
+    // file's version and reads what it has); older ones wait for the service to migrate them.
+    if (version < std::min<std::int64_t>(target_version, k_store_min_readable_version)) {
       return make(file, store_error_kind::schema_too_old,
                   "schema version " + std::to_string(version) + " is older than this program's (" +
                       std::to_string(target_version) + "); the service migrates it on its next start");
     }
+    // Reports read hundreds of megabytes in one pass: map the file instead of copying each page
+    // through read(), and keep a larger page cache. Both only speed reading; failures are harmless.
+    exec(raw, "PRAGMA mmap_size = 1073741824");
+    exec(raw, "PRAGMA cache_size = -16384");
     return db;
   }
 

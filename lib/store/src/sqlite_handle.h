@@ -3,7 +3,9 @@
 // tests) include this; sqlite3.h stays out of the public headers.
 #include <sqlite3.h>
 
+#include <cstddef>
 #include <cstdint>
+#include <optional>
 #include <string>
 #include <string_view>
 #include <utility>
@@ -64,6 +66,35 @@ class statement {
   void bind_int64(int index, std::int64_t value) const;
   void bind_double(int index, double value) const;
   void bind_null(int index) const;
+
+  // One overload per value type that the store writes; std::nullopt and nullptr bind NULL.
+  void bind(int index, std::string_view text) const { bind_text(index, text); }
+  void bind(int index, const std::string& text) const { bind_text(index, text); }
+  void bind(int index, const char* text) const { bind_text(index, text); }
+  void bind(int index, std::int64_t value) const { bind_int64(index, value); }
+  void bind(int index, int value) const { bind_int64(index, value); }
+  void bind(int index, double value) const { bind_double(index, value); }
+  void bind(int index, std::nullptr_t) const { bind_null(index); }
+  template <typename T>
+  void bind(int index, const std::optional<T>& value) const {
+    if (value) {
+      bind(index, *value);
+    } else {
+      bind_null(index);
+    }
+  }
+
+  // Binds `values` to ?1 .. ?N, steps once and resets the statement for its next use. Returns
+  // the step's result code (SQLITE_DONE for a statement without rows). sqlite3_errmsg still
+  // describes a failure after the reset. Text is not copied: the values outlive the call.
+  template <typename... Values>
+  int run(const Values&... values) const {
+    int index = 0;
+    (bind(++index, values), ...);
+    const int rc = sqlite3_step(stmt_);
+    sqlite3_reset(stmt_);
+    return rc;
+  }
 
  private:
   sqlite3_stmt* stmt_ = nullptr;

@@ -5,6 +5,7 @@
 #include <condition_variable>
 #include <cstdio>
 #include <exception>
+#include <map>
 #include <mutex>
 #include <optional>
 #include <thread>
@@ -14,6 +15,7 @@
 #include "dewmargin/history_reader.h"
 #include "migrations.h"
 #include "pending_rows.h"
+#include "period_rows.h"
 #include "sqlite_handle.h"
 
 namespace dewmargin {
@@ -33,11 +35,8 @@ constexpr const char* k_insert_event_sql =
     "INSERT INTO events (ts_ms, subject_type, subject_id, kind, json) VALUES (?1, ?2, ?3, ?4, ?5)";
 // A later sample of the same minute (a restart within the minute) replaces the earlier one.
 constexpr const char* k_upsert_sample_sql =
-    "INSERT INTO zone_samples (zone, minute_ms, min_margin_k, max_dew_point_c, worst_band, air_temp_c, rh_pct, "
-    "surface_min_c, supply_c) VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9) "
-    "ON CONFLICT (zone, minute_ms) DO UPDATE SET min_margin_k = excluded.min_margin_k, "
-    "max_dew_point_c = excluded.max_dew_point_c, worst_band = excluded.worst_band, air_temp_c = excluded.air_temp_c, "
-    "rh_pct = excluded.rh_pct, surface_min_c = excluded.surface_min_c, supply_c = excluded.supply_c";
+    "INSERT OR REPLACE INTO zone_samples (minute_ms, zone, min_margin_k, max_dew_point_c, worst_band, air_temp_c, "
+    "rh_pct, surface_min_c, supply_c, surface_rh_pct) VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10)";
 constexpr const char* k_upsert_zone_sql =
     "INSERT INTO zone_state (zone, band, alarm_active, acknowledged, shelved_until_ms, valve, ts_ms) "
     "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7) ON CONFLICT (zone) DO UPDATE SET band = excluded.band, "
@@ -48,17 +47,20 @@ constexpr const char* k_upsert_loop_sql =
     "ON CONFLICT (loop) DO UPDATE SET setpoint_c = excluded.setpoint_c, ts_ms = excluded.ts_ms";
 constexpr const char* k_delete_old_events_sql =
     "DELETE FROM events WHERE id IN (SELECT id FROM events WHERE ts_ms < ?1 ORDER BY ts_ms LIMIT ?2)";
+// zone_samples and zone_hours are clustered by time: the oldest rows are a range at the front.
 constexpr const char* k_delete_old_samples_sql =
-    "DELETE FROM zone_samples WHERE rowid IN "
-    "(SELECT rowid FROM zone_samples WHERE minute_ms < ?1 ORDER BY minute_ms LIMIT ?2)";
+    "DELETE FROM zone_samples WHERE (minute_ms, zone) IN "
+    "(SELECT minute_ms, zone FROM zone_samples WHERE minute_ms < ?1 ORDER BY minute_ms LIMIT ?2)";
+constexpr const char* k_delete_old_hours_sql =
+    "DELETE FROM zone_hours WHERE (hour_ms, zone) IN "
+    "(SELECT hour_ms, zone FROM zone_hours WHERE hour_ms < ?1 ORDER BY hour_ms LIMIT ?2)";
+constexpr const char* k_oldest_sample_sql = "SELECT min(minute_ms) FROM zone_samples";
+constexpr const char* k_minutes_to_roll_sql =
+    "SELECT minute_ms, zone, min_margin_k, max_dew_point_c, worst_band, air_temp_c, rh_pct, surface_min_c, supply_c, "
+    "surface_rh_pct FROM zone_samples WHERE minute_ms >= ?1 AND minute_ms < ?2";
+constexpr const char* k_delete_rolled_sql = "DELETE FROM zone_samples WHERE minute_ms >= ?1 AND minute_ms < ?2";
 
-void bind_optional(const statement& stmt, int index, const std::optional<double>& value) {
-  if (value) {
-    stmt.bind_double(index, *value);
-  } else {
-    stmt.bind_null(index);
-  }
-}
+std::int64_t floor_to(std::int64_t ms, std::int64_t unit) { return ms - (((ms % unit) + unit) % unit); }
 
 std::string seconds_text(std::chrono::milliseconds d) {
   char buf[32];
@@ -106,6 +108,11 @@ class store_writer::impl {
         {k_upsert_loop_sql, &upsert_loop_},
         {k_delete_old_events_sql, &delete_old_events_},
         {k_delete_old_samples_sql, &delete_old_samples_},
+        {k_delete_old_hours_sql, &delete_old_hours_},
+        {k_oldest_sample_sql, &oldest_sample_},
+        {k_minutes_to_roll_sql, &minutes_to_roll_},
+        {k_delete_rolled_sql, &delete_rolled_},
+        {upsert_hour_sql_.c_str(), &upsert_hour_},
     };
     for (const auto& [sql, stmt] : all) {
       const int rc = statement::prepare(db_.get(), sql, *stmt);
@@ -321,89 +328,55 @@ class store_writer::impl {
   std::optional<write_failure> write(const pending_rows& batch) {
     sqlite3* db = db_.get();
     std::optional<write_failure> failure;
-    const auto fail = [&](std::string step, int rc, sqlite3_stmt* stmt) {
-      failure = write_failure{std::move(step), describe(db, rc)};
-      if (stmt != nullptr) sqlite3_reset(stmt);
+    const auto fail = [&](std::string step, int step_rc) {
+      failure = write_failure{std::move(step), describe(db, step_rc)};
       // Some errors (SQLITE_FULL, SQLITE_IOERR ...) roll back on their own; the rest we do.
       if (sqlite3_get_autocommit(db) == 0) exec(db, "ROLLBACK");
     };
     int rc = exec(db, "BEGIN IMMEDIATE");
     if (rc != SQLITE_OK) {
-      fail("beginning the transaction", rc, nullptr);
+      fail("beginning the transaction", rc);
       return failure;
     }
     std::size_t index = 0;
     batch.for_each_event([&](const event_record& e) {
       if (failure) return;
-      const statement& s = insert_event_;
-      s.bind_int64(1, to_unix_ms(e.ts));
-      s.bind_text(2, subject_type_name(e.subject));
-      s.bind_text(3, e.subject_id);
-      s.bind_text(4, e.kind);
-      s.bind_text(5, e.json);
-      const int step_rc = sqlite3_step(s.get());
-      if (step_rc != SQLITE_DONE) {
-        fail("inserting event " + std::to_string(index + 1) + " (" + e.kind + " of " + subject_type_name(e.subject) +
-                 " '" + e.subject_id + "' at " + format_iso8601_utc(e.ts) + ")",
-             step_rc, s.get());
-        return;
-      }
-      sqlite3_reset(s.get());
       ++index;
+      rc = insert_event_.run(to_unix_ms(e.ts), subject_type_name(e.subject), e.subject_id, e.kind, e.json);
+      if (rc != SQLITE_DONE) {
+        fail("inserting event " + std::to_string(index) + " (" + e.kind + " of " + subject_type_name(e.subject) +
+                 " '" + e.subject_id + "' at " + format_iso8601_utc(e.ts) + ")",
+             rc);
+      }
     });
     if (failure) return failure;
     for (const auto& z : batch.samples()) {
-      const statement& s = upsert_sample_;
-      s.bind_text(1, z.zone);
-      s.bind_int64(2, to_unix_ms(z.minute_start));
-      bind_optional(s, 3, z.min_margin_k);
-      bind_optional(s, 4, z.max_dew_point_c);
-      s.bind_text(5, z.worst_band);
-      bind_optional(s, 6, z.air_temp_c);
-      bind_optional(s, 7, z.rh_pct);
-      bind_optional(s, 8, z.surface_min_c);
-      bind_optional(s, 9, z.supply_c);
-      rc = sqlite3_step(s.get());
+      rc = upsert_sample_.run(to_unix_ms(z.minute_start), z.zone, z.min_margin_k, z.max_dew_point_c, z.worst_band,
+                              z.air_temp_c, z.rh_pct, z.surface_min_c, z.supply_c, z.surface_rh_pct);
       if (rc != SQLITE_DONE) {
-        fail("writing the sample of zone '" + z.zone + "' at " + format_iso8601_utc(z.minute_start), rc, s.get());
+        fail("writing the sample of zone '" + z.zone + "' at " + format_iso8601_utc(z.minute_start), rc);
         return failure;
       }
-      sqlite3_reset(s.get());
     }
     for (const auto& [zone, z] : batch.zone_snapshots()) {
-      const statement& s = upsert_zone_;
-      s.bind_text(1, z.zone);
-      s.bind_text(2, z.band);
-      s.bind_int64(3, z.alarm_active ? 1 : 0);
-      s.bind_int64(4, z.acknowledged ? 1 : 0);
-      if (z.shelved_until) {
-        s.bind_int64(5, to_unix_ms(*z.shelved_until));
-      } else {
-        s.bind_null(5);
-      }
-      s.bind_text(6, z.valve);
-      s.bind_int64(7, to_unix_ms(z.ts));
-      rc = sqlite3_step(s.get());
+      const std::optional<std::int64_t> shelved_until_ms =
+          z.shelved_until ? std::optional<std::int64_t>(to_unix_ms(*z.shelved_until)) : std::nullopt;
+      rc = upsert_zone_.run(z.zone, z.band, z.alarm_active ? 1 : 0, z.acknowledged ? 1 : 0, shelved_until_ms, z.valve,
+                            to_unix_ms(z.ts));
       if (rc != SQLITE_DONE) {
-        fail("writing the state of zone '" + zone + "'", rc, s.get());
+        fail("writing the state of zone '" + zone + "'", rc);
         return failure;
       }
-      sqlite3_reset(s.get());
     }
     for (const auto& [loop, l] : batch.loop_snapshots()) {
-      const statement& s = upsert_loop_;
-      s.bind_text(1, l.loop);
-      s.bind_double(2, l.setpoint_c);
-      s.bind_int64(3, to_unix_ms(l.ts));
-      rc = sqlite3_step(s.get());
+      rc = upsert_loop_.run(l.loop, l.setpoint_c, to_unix_ms(l.ts));
       if (rc != SQLITE_DONE) {
-        fail("writing the state of loop '" + loop + "'", rc, s.get());
+        fail("writing the state of loop '" + loop + "'", rc);
         return failure;
       }
-      sqlite3_reset(s.get());
     }
     rc = exec(db, "COMMIT");
-    if (rc != SQLITE_OK) fail("committing", rc, nullptr);
+    if (rc != SQLITE_OK) fail("committing", rc);
     return failure;
   }
 
@@ -419,16 +392,20 @@ class store_writer::impl {
         options_.retention_now
             ? options_.retention_now()
             : std::chrono::time_point_cast<std::chrono::milliseconds>(std::chrono::system_clock::now());
+    const std::uint64_t minutes_rolled = roll_up(now, problems);
     const std::uint64_t events_deleted =
         delete_older(delete_old_events_, "events", cutoff_ms(now, options_.keep_events_days), problems);
-    const std::uint64_t samples_deleted =
-        delete_older(delete_old_samples_, "zone_samples", cutoff_ms(now, options_.keep_samples_days), problems);
+    const auto samples_cutoff = cutoff_ms(now, options_.keep_samples_days);
+    const std::uint64_t samples_deleted = delete_older(delete_old_samples_, "zone_samples", samples_cutoff, problems);
+    const std::uint64_t hours_deleted = delete_older(delete_old_hours_, "zone_hours", samples_cutoff, problems);
     vacuum_free_pages(problems);
     checkpoint(pass, problems);
 
     lock.lock();
     counters_.events_deleted += events_deleted;
     counters_.samples_deleted += samples_deleted;
+    counters_.hours_deleted += hours_deleted;
+    counters_.minutes_rolled_up += minutes_rolled;
     counters_.errors += problems.size();
     ++counters_.maintenance_passes;
     maintenance_running_ = false;
@@ -437,6 +414,103 @@ class store_writer::impl {
     lock.unlock();
     for (const auto& p : problems) report(options_.path.string() + ": maintenance: " + p);
     lock.lock();
+  }
+
+  // Per-minute samples older than keep_minute_samples_days (whole hours) become hourly rows,
+  // a few hours per transaction, until none is left or the pass has used its time budget.
+  // Returns the number of per-minute rows rolled up.
+  std::uint64_t roll_up(timestamp now, std::vector<std::string>& problems) {
+    const auto cutoff = cutoff_ms(now, options_.keep_minute_samples_days);
+    if (!cutoff) return 0;
+    const std::int64_t cutoff_hour = floor_to(*cutoff, store_detail::k_ms_per_hour);
+    const std::int64_t batch_ms = std::max<std::int64_t>(1, options_.rollup_hours_per_batch) * store_detail::k_ms_per_hour;
+    const auto deadline = steady::now() + options_.rollup_pass_budget;
+    sqlite3* db = db_.get();
+    std::uint64_t rolled = 0;
+    do {
+      int rc = sqlite3_step(oldest_sample_.get());
+      const bool have = rc == SQLITE_ROW && sqlite3_column_type(oldest_sample_.get(), 0) != SQLITE_NULL;
+      const std::int64_t oldest = have ? sqlite3_column_int64(oldest_sample_.get(), 0) : 0;
+      sqlite3_reset(oldest_sample_.get());
+      if (rc != SQLITE_ROW) {
+        problems.push_back("roll-up: finding the oldest sample: " + describe(db, rc) + "; retried on the next pass");
+        break;
+      }
+      if (!have || oldest >= cutoff_hour) break;
+      const std::int64_t from_ms = floor_to(oldest, store_detail::k_ms_per_hour);
+      const std::int64_t to_ms = std::min(from_ms + batch_ms, cutoff_hour);
+      std::string failed_step;
+      const std::uint64_t n = roll_up_range(from_ms, to_ms, failed_step);
+      if (!failed_step.empty()) {
+        problems.push_back("roll-up of " + format_iso8601_utc(from_unix_ms(from_ms)) + " … " +
+                           format_iso8601_utc(from_unix_ms(to_ms)) + ": " + failed_step + "; retried on the next pass");
+        break;
+      }
+      rolled += n;
+    } while (steady::now() < deadline);
+    return rolled;
+  }
+
+  // One transaction: reads the minutes of [from_ms, to_ms), merges them per zone and hour (into
+  // an hour already rolled up, if a late sample arrived for it), writes the hours and deletes
+  // the minutes. On failure `failed_step` says what failed and nothing changed.
+  std::uint64_t roll_up_range(std::int64_t from_ms, std::int64_t to_ms, std::string& failed_step) {
+    sqlite3* db = db_.get();
+    const auto failed = [&](const char* what, int rc) {
+      failed_step = std::string(what) + ": " + describe(db, rc);
+      if (sqlite3_get_autocommit(db) == 0) exec(db, "ROLLBACK");
+      return std::uint64_t{0};
+    };
+    int rc = exec(db, "BEGIN IMMEDIATE");
+    if (rc != SQLITE_OK) return failed("beginning the transaction", rc);
+    std::map<std::pair<std::int64_t, std::string>, zone_period> hours;
+    {
+      statement existing;
+      const std::string sql = std::string("SELECT ") + store_detail::k_hour_columns +
+                              " FROM zone_hours WHERE hour_ms >= ?1 AND hour_ms < ?2";
+      rc = statement::prepare(db, sql, existing);
+      if (rc != SQLITE_OK) return failed("querying hourly rows", rc);
+      existing.bind_int64(1, from_ms);
+      existing.bind_int64(2, to_ms);
+      zone_period h;
+      while ((rc = sqlite3_step(existing.get())) == SQLITE_ROW) {
+        store_detail::read_hour_row(existing.get(), h);
+        hours.emplace(std::make_pair(to_unix_ms(h.start), h.zone), h);
+      }
+      if (rc != SQLITE_DONE) return failed("reading hourly rows", rc);
+    }
+    std::uint64_t minutes = 0;
+    {
+      const statement& s = minutes_to_roll_;
+      s.bind_int64(1, from_ms);
+      s.bind_int64(2, to_ms);
+      zone_sample scratch;
+      zone_period minute;
+      while ((rc = sqlite3_step(s.get())) == SQLITE_ROW) {
+        store_detail::read_minute_row(s.get(), scratch, minute);
+        const std::int64_t hour_ms = floor_to(to_unix_ms(minute.start), store_detail::k_ms_per_hour);
+        auto it = hours.find({hour_ms, minute.zone});
+        if (it == hours.end()) {
+          it = hours.emplace(std::make_pair(hour_ms, minute.zone), empty_period(minute.zone, from_unix_ms(hour_ms), 0))
+                   .first;
+        }
+        merge_period(it->second, minute);
+        ++minutes;
+      }
+      sqlite3_reset(s.get());
+      if (rc != SQLITE_DONE) return failed("reading samples", rc);
+    }
+    for (auto& [key, hour] : hours) {
+      // Minutes missing at the end of the hour break a mould run there.
+      if (hour.length_min < 60) merge_period(hour, empty_period(hour.zone, hour.start + std::chrono::hours{1}, 0));
+      rc = store_detail::write_hour_row(upsert_hour_, hour);
+      if (rc != SQLITE_DONE) return failed("writing an hourly row", rc);
+    }
+    rc = delete_rolled_.run(from_ms, to_ms);
+    if (rc != SQLITE_DONE) return failed("deleting rolled-up samples", rc);
+    rc = exec(db, "COMMIT");
+    if (rc != SQLITE_OK) return failed("committing", rc);
+    return minutes;
   }
 
   // Deletes rows older than the cut-off in transactions of retention_batch_rows, at most
@@ -453,11 +527,8 @@ class store_writer::impl {
                            "; retried on the next pass");
         break;
       }
-      stmt.bind_int64(1, *cutoff);
-      stmt.bind_int64(2, static_cast<std::int64_t>(options_.retention_batch_rows));
-      rc = sqlite3_step(stmt.get());
+      rc = stmt.run(*cutoff, static_cast<std::int64_t>(options_.retention_batch_rows));
       const std::string text = rc == SQLITE_DONE ? std::string() : describe(db, rc);
-      sqlite3_reset(stmt.get());
       if (rc != SQLITE_DONE) {
         if (sqlite3_get_autocommit(db) == 0) exec(db, "ROLLBACK");
         problems.push_back(std::string("retention of ") + table + ": deleting: " + text + "; retried on the next pass");
@@ -513,6 +584,12 @@ class store_writer::impl {
   statement upsert_loop_;
   statement delete_old_events_;
   statement delete_old_samples_;
+  statement delete_old_hours_;
+  statement oldest_sample_;
+  statement minutes_to_roll_;
+  statement delete_rolled_;
+  const std::string upsert_hour_sql_ = store_detail::upsert_hour_sql();
+  statement upsert_hour_;
   std::thread thread_;
 
   mutable std::mutex mu_;

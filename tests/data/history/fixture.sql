@@ -1,6 +1,6 @@
 -- Invented history for tests/cli/test_history.sh (demo data, no real site).
--- The DDL must stay identical to lib/store/src/migrations.cpp (schema version 1):
--- the test StoreSchema.FixtureMatchesMigrations compares the two.
+-- The DDL must stay identical to what lib/store/src/migrations.cpp leaves in a new file (schema
+-- version 2): the test StoreSchema.FixtureOfTheCliTestMatchesTheMigrations compares the two.
 PRAGMA auto_vacuum = INCREMENTAL;
 PRAGMA journal_mode = WAL;
 BEGIN IMMEDIATE;
@@ -16,19 +16,6 @@ CREATE TABLE events (
 CREATE INDEX events_by_subject_ts ON events (subject_id, ts_ms);
 CREATE INDEX events_by_ts ON events (ts_ms);
 CREATE INDEX events_by_kind_ts ON events (kind, ts_ms);
-CREATE TABLE zone_samples (
-  zone TEXT NOT NULL,
-  minute_ms INTEGER NOT NULL,
-  min_margin_k REAL,
-  max_dew_point_c REAL,
-  worst_band TEXT NOT NULL,
-  air_temp_c REAL,
-  rh_pct REAL,
-  surface_min_c REAL,
-  supply_c REAL,
-  PRIMARY KEY (zone, minute_ms)
-);
-CREATE INDEX zone_samples_by_minute ON zone_samples (minute_ms);
 CREATE TABLE zone_state (
   zone TEXT PRIMARY KEY,
   band TEXT NOT NULL,
@@ -43,7 +30,48 @@ CREATE TABLE loop_state (
   setpoint_c REAL NOT NULL,
   ts_ms INTEGER NOT NULL
 );
-PRAGMA user_version = 1;
+CREATE TABLE zone_samples (
+  minute_ms INTEGER NOT NULL,
+  zone TEXT NOT NULL,
+  min_margin_k REAL,
+  max_dew_point_c REAL,
+  worst_band TEXT NOT NULL,
+  air_temp_c REAL,
+  rh_pct REAL,
+  surface_min_c REAL,
+  supply_c REAL,
+  surface_rh_pct REAL,
+  PRIMARY KEY (minute_ms, zone)
+) WITHOUT ROWID;
+CREATE TABLE zone_hours (
+  hour_ms INTEGER NOT NULL,
+  zone TEXT NOT NULL,
+  sample_minutes INTEGER NOT NULL,
+  min_margin_k REAL,
+  min_margin_at_ms INTEGER,
+  max_margin_k REAL,
+  mean_margin_k REAL,
+  max_dew_point_c REAL,
+  mean_dew_point_c REAL,
+  min_surface_c REAL,
+  mean_surface_c REAL,
+  mean_air_temp_c REAL,
+  mean_rh_pct REAL,
+  mean_supply_c REAL,
+  max_surface_rh_pct REAL,
+  mean_surface_rh_pct REAL,
+  safe_min INTEGER NOT NULL,
+  tight_min INTEGER NOT NULL,
+  alarm_min INTEGER NOT NULL,
+  condensing_min INTEGER NOT NULL,
+  unknown_min INTEGER NOT NULL,
+  mould_min INTEGER NOT NULL,
+  mould_head_min INTEGER NOT NULL,
+  mould_tail_min INTEGER NOT NULL,
+  mould_longest_min INTEGER NOT NULL,
+  PRIMARY KEY (hour_ms, zone)
+) WITHOUT ROWID;
+PRAGMA user_version = 2;
 
 -- 2026-07-13T23:59:59Z = 1783987199000; 2026-07-14T00:00:00Z = 1783987200000;
 -- 2026-07-14T13:00:00Z = 1784034000000 (computed with GNU date -u -d).
@@ -62,7 +90,7 @@ INSERT INTO events (id, ts_ms, subject_type, subject_id, kind, json) VALUES
   '{"ts":"2026-07-15T00:00:00Z","site":"demo-site","zone":"level2-east","kind":"band","from":"tight","to":"safe","margin_k":2.5,"dew_point_c":15.1}');
 
 INSERT INTO zone_samples VALUES
- ('level2-east', 1784034000000, 1.84, 16.21, 'tight', 25.1, 55.0, 18.05, 17.2);
+ (1784034000000, 'level2-east', 1.84, 16.21, 'tight', 25.1, 55.0, 18.05, 17.2, NULL);
 INSERT INTO zone_state VALUES ('level2-east', 'tight', 0, 1, NULL, 'open', 1784034060000);
 INSERT INTO loop_state VALUES ('loop-a', 18.25, 1784034060000);
 COMMIT;

@@ -58,6 +58,7 @@ struct zone_sample {
   std::optional<double> rh_pct;
   std::optional<double> surface_min_c;
   std::optional<double> supply_c;
+  std::optional<double> surface_rh_pct;   // room air's RH at the coldest surface (null: the reader computes it)
 };
 
 // What a restarted service restores (and re-publishes before it evaluates readings).

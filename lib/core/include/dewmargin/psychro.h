@@ -47,4 +47,12 @@ result<double> dew_point_from_vapour_pressure_c(double e_hpa, const magnus_coeff
 result<double> humidity_ratio_kg_per_kg(double t_c, double rh_pct, double pressure_kpa = k_standard_pressure_kpa,
                                         const magnus_coefficients& k = k_sonntag_1990);
 
+// Relative humidity [%] of the room air at a surface of temperature surface_c: the air's vapour
+// pressure over the saturation pressure at the surface, RH_s = 100 · e(air) / e_s(surface) —
+// the quantity of the mould criterion of EN ISO 13788 (as summarised in BS 5250, Annex D).
+// A surface at or below the dew point gives 100 % (the air cannot hold more than saturation there).
+// Errors: air or surface temperature outside −45 … 60 °C, RH outside (0, 103].
+result<double> surface_rh_pct(double air_temp_c, double rh_pct, double surface_c,
+                              const magnus_coefficients& k = k_sonntag_1990);
+
 }  // namespace dewmargin::psychro

@@ -20,11 +20,13 @@ struct error {
   std::string message;  // one line, names the offending value
 };
 
-template <typename T>
+// E is the error type: `error` for the core, `store_error` for the history store
+// (`store_result<T>` is `result<T, store_error>`). T and E must differ.
+template <typename T, typename E = error>
 class [[nodiscard]] result {
  public:
-  result(T value) : state_(std::move(value)) {}                 // NOLINT: implicit on purpose
-  result(error err) : state_(std::move(err)) {}                 // NOLINT: implicit on purpose
+  result(T value) : state_(std::move(value)) {}  // NOLINT: implicit on purpose
+  result(E err) : state_(std::move(err)) {}      // NOLINT: implicit on purpose
 
   [[nodiscard]] bool ok() const noexcept { return state_.index() == 0; }
   explicit operator bool() const noexcept { return ok(); }
@@ -32,10 +34,10 @@ class [[nodiscard]] result {
   [[nodiscard]] const T& value() const& { return std::get<0>(state_); }
   [[nodiscard]] T& value() & { return std::get<0>(state_); }
   [[nodiscard]] T&& value() && { return std::get<0>(std::move(state_)); }
-  [[nodiscard]] const error& err() const& { return std::get<1>(state_); }
+  [[nodiscard]] const E& err() const& { return std::get<1>(state_); }
 
  private:
-  std::variant<T, error> state_;
+  std::variant<T, E> state_;
 };
 
 inline error make_error(error_code code, std::string message) { return error{code, std::move(message)}; }

@@ -13,6 +13,7 @@
 #include "dewmargin/engine_output.h"
 #include "dewmargin/store_error.h"
 #include "dewmargin/timestamp.h"
+#include "dewmargin/zone_period.h"
 
 namespace dewmargin {
 
@@ -20,7 +21,7 @@ struct event_filter {
   std::optional<std::string> subject_id;  // a zone, loop or dehumidifier id
   std::optional<timestamp> since;         // inclusive
   std::optional<timestamp> until;         // exclusive
-  std::optional<std::string> kind;
+  std::vector<std::string> kinds;         // any of these; empty: every kind
 };
 
 struct stored_event {
@@ -49,11 +50,30 @@ class history_reader {
   [[nodiscard]] store_result<std::size_t> for_each_event(const event_filter& filter,
                                                          const std::function<void(const stored_event&)>& visit) const;
   [[nodiscard]] store_result<std::vector<stored_event>> events(const event_filter& filter) const;
+  // The latest event that matches (by ts, then id); nullopt when none does.
+  [[nodiscard]] store_result<std::optional<stored_event>> last_event(const event_filter& filter) const;
 
   // Samples ordered by zone, then minute.
   [[nodiscard]] store_result<std::size_t> for_each_sample(const sample_filter& filter,
                                                           const std::function<void(const zone_sample&)>& visit) const;
   [[nodiscard]] store_result<std::vector<zone_sample>> samples(const sample_filter& filter) const;
+
+  // Hourly roll-ups, then per-minute samples, each ordered by start, then zone: everything a
+  // report draws from, one row at a time (a year is never held in memory). An hour is included
+  // when it overlaps [since, until). Rows that exist only in version 1 files are read as such
+  // (no roll-ups; surface RH computed). The `zone_period` passed to `visit` is reused.
+  [[nodiscard]] store_result<std::size_t> for_each_period(const sample_filter& filter,
+                                                          const std::function<void(const zone_period&)>& visit) const;
+
+  // The first and last time with a stored sample, roll-up or event; nullopt in an empty file.
+  struct time_span {
+    timestamp first;
+    timestamp last;
+  };
+  [[nodiscard]] store_result<std::optional<time_span>> stored_span() const;
+
+  // PRAGMA user_version of the file (1 or 2).
+  [[nodiscard]] int schema_version() const;
 
   // Latest snapshot per zone and loop (ordered by their ids), read in one transaction.
   [[nodiscard]] store_result<restored_state> load_restored_state() const;

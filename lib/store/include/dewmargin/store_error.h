@@ -2,8 +2,8 @@
 // Expected failures of the history store. Every message starts with the database file,
 // so an operator sees which file is wrong ("FILE: not a dewmargin history database ...").
 #include <string>
-#include <utility>
-#include <variant>
+
+#include "dewmargin/result.h"
 
 namespace dewmargin {
 
@@ -24,23 +24,8 @@ struct store_error {
   std::string message;  // one line, starts with the file name
 };
 
-// Same shape as dewmargin::result<T>, with the store's own error kinds.
+// The project's one result template with the store's own error kinds.
 template <typename T>
-class [[nodiscard]] store_result {
- public:
-  store_result(T value) : state_(std::move(value)) {}        // NOLINT: implicit on purpose
-  store_result(store_error err) : state_(std::move(err)) {}  // NOLINT: implicit on purpose
-
-  [[nodiscard]] bool ok() const noexcept { return state_.index() == 0; }
-  explicit operator bool() const noexcept { return ok(); }
-
-  [[nodiscard]] const T& value() const& { return std::get<0>(state_); }
-  [[nodiscard]] T& value() & { return std::get<0>(state_); }
-  [[nodiscard]] T&& value() && { return std::get<0>(std::move(state_)); }
-  [[nodiscard]] const store_error& err() const& { return std::get<1>(state_); }
-
- private:
-  std::variant<T, store_error> state_;
-};
+using store_result = result<T, store_error>;
 
 }  // namespace dewmargin

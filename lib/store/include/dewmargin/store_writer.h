@@ -20,7 +20,13 @@ namespace dewmargin {
 struct store_writer_options {
   std::filesystem::path path;
   double keep_events_days = 730.0;   // <= 0: keep forever
-  double keep_samples_days = 400.0;  // <= 0: keep forever
+  double keep_samples_days = 400.0;  // <= 0: keep forever (per-minute samples and hourly roll-ups)
+  // Per-minute samples older than this become hourly rows (zone_hours) that keep min, max, mean,
+  // minutes in each band and the mould figures; <= 0: never roll up. Config key to wire:
+  // storage.keep_minute_samples_days (default 35: a month's report is drawn from minutes).
+  double keep_minute_samples_days = 35.0;
+  int rollup_hours_per_batch = 6;  // hours rolled up per transaction (all zones)
+  std::chrono::milliseconds rollup_pass_budget{2000};  // a maintenance pass stops rolling up after this
 
   // Rows waiting in memory, at most. Beyond it the oldest samples go first, then the oldest
   // events that are not alarm-related, and only then the oldest alarm-related events.
@@ -65,6 +71,8 @@ struct store_writer_counters {
   std::uint64_t in_flight_rows = 0;   // of those, the batch a commit is writing right now
   std::uint64_t events_deleted = 0;   // by retention
   std::uint64_t samples_deleted = 0;  // by retention
+  std::uint64_t hours_deleted = 0;    // hourly roll-ups deleted by retention
+  std::uint64_t minutes_rolled_up = 0;  // per-minute samples turned into hourly rows
   std::uint64_t maintenance_passes = 0;
   std::uint64_t last_commit_us = 0;  // duration of the latest successful commit
   std::uint64_t max_commit_us = 0;
