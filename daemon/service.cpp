@@ -9,7 +9,10 @@
 
 #include "dewmargin/config_loader.h"
 #include "dewmargin/engine.h"
+#include "dewmargin/http_server.h"
 #include "dewmargin/json_dump.h"
+#include "dewmargin/live_snapshot.h"
+#include "dewmargin/secret_file.h"
 #include "dewmargin/mqtt_link.h"
 #include "dewmargin/restart_needed.h"
 #include "dewmargin/store_writer.h"
@@ -25,6 +28,7 @@ namespace dewmargin::daemon {
 namespace {
 
 constexpr auto k_tick = std::chrono::seconds(1);
+constexpr auto k_http_retry = std::chrono::seconds(60);      // the web server, when it could not start
 constexpr auto k_max_wait = std::chrono::milliseconds(200);  // signal and watchdog latency
 constexpr int k_burst = 256;
 constexpr std::size_t k_max_early_messages = 1000;
@@ -86,6 +90,10 @@ class service {
       return 1;
     }
     link_ = std::make_unique<mqtt_link>(std::move(link.value()));
+    if (cfg.http) {
+      live_ = std::make_unique<live_snapshot>(cfg.publish.prefix, cfg.site, k_version);
+      start_http(*cfg.http);
+    }
 
     open_store();
     restored_state restored;
@@ -207,6 +215,56 @@ class service {
     if (started_) core_->service_event(service_now(), "running", "running", text, batch_);
   }
 
+  // ---- live views (lib/http): the web server gets copies of the published states ----
+
+  // Like the history: supervision matters more than the page. A server that cannot start
+  // (port taken, token file missing) is logged and tried again every minute.
+  void start_http(const http_config& h) {
+    next_http_attempt_ = std::chrono::steady_clock::now() + k_http_retry;
+    http_server_options o;
+    o.host = h.host;
+    o.port = h.port;
+    if (!h.token_file.empty()) {
+      auto token = read_secret_file(h.token_file);
+      if (!token) {
+        problems_.report(spdlog::level::err, "http.token_file " + token.err().message +
+                                                 "; no web server until it can be read (retrying every 60 s)");
+        return;
+      }
+      o.token = std::move(token).value();
+    }
+    auto server = http_server::start(o, *live_);
+    if (!server) {
+      problems_.report(spdlog::level::err, server.err().message + "; retrying every 60 s");
+      return;
+    }
+    http_ = std::move(server).value();
+    const std::string host = o.host.find(':') != std::string::npos ? "[" + o.host + "]" : o.host;
+    log_->info("live page at http://{}:{}/ (metrics at /metrics{})", host, http_->port(),
+               o.token.empty() ? "" : "; bearer token required");
+  }
+
+  void update_live_counters() {
+    if (!live_) return;
+    service_counters c;
+    const auto st = link_->stats();
+    const auto& ec = core_->counters();
+    c.messages_received = st.received;
+    c.bad_inputs = retired_bad_inputs_ + ec.bad_readings;
+    c.commands_rejected = retired_rejected_ + ec.rejected;
+    c.broker_reconnects = st.reconnects;
+    c.outbox_drops = st.dropped_outbox_of(message_class::event) + st.dropped_outbox_of(message_class::alarm_event) +
+                     st.dropped_outbox_of(message_class::state) + st.dropped_outbox_of(message_class::command);
+    if (store_) {
+      const auto sc = store_->counters();
+      c.store_write_errors = sc.errors;
+      c.store_commits = sc.commits;
+      c.store_commit_us_total = sc.total_commit_us;
+    }
+    c.broker_connected = link_->connected();
+    live_->set_counters(c);
+  }
+
   // Publish first: the outbox takes messages without waiting, the store only copies rows,
   // so neither a slow disk nor a slow broker delays the other.
   void dispatch() {
@@ -214,6 +272,11 @@ class service {
       if (!log_budget_.admit(e.kind)) continue;
       const bool warn = e.kind == "rejected";
       log_->log(warn ? spdlog::level::warn : spdlog::level::info, "{}", describe_event(e));
+    }
+    if (live_) {
+      for (const auto& m : batch_.messages) {
+        if (m.retained && m.cls == message_class::state) live_->on_published(m.topic, m.payload);
+      }
     }
     for (auto& m : batch_.messages) link_publish(std::move(m));
     if (store_) store_->enqueue(batch_);
@@ -244,6 +307,8 @@ class service {
           dispatch();
         }
         next_tick += k_tick;
+        update_live_counters();
+        if (live_ && !http_ && core_->config().http && after >= next_http_attempt_) start_http(*core_->config().http);
         // After a stall (suspend, debugger) do not replay the missed ticks one by one.
         if (after - next_tick > std::chrono::seconds(5)) next_tick = after + k_tick;
         if (!store_ && after >= next_store_retry_) open_store();
@@ -387,6 +452,8 @@ class service {
       notifier_.ready("config reloaded");
       return;
     }
+    retired_bad_inputs_ += core_->counters().bad_readings;  // a new engine counts from zero
+    retired_rejected_ += core_->counters().rejected;
     fresh->adopt(*core_, now, batch_);
     core_ = std::move(fresh);
     core_->service_event(now, "running", "running", "config reloaded", batch_);
@@ -396,6 +463,7 @@ class service {
 
   void shut_down() {
     notifier_.stopping();
+    if (http_) http_->stop();
     if (started_) {
       const timestamp now = service_now();
       core_->flush(now, batch_);
@@ -440,6 +508,12 @@ class service {
   timestamp event_now_{};
   std::optional<tick_driver> event_ticks_;
   std::vector<inbound_message> early_;
+  // Live views (http: in the config).
+  std::unique_ptr<live_snapshot> live_;
+  std::unique_ptr<http_server> http_;
+  std::chrono::steady_clock::time_point next_http_attempt_{};
+  std::uint64_t retired_bad_inputs_ = 0;
+  std::uint64_t retired_rejected_ = 0;
 };
 
 }  // namespace

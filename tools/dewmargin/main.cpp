@@ -7,6 +7,7 @@
 #include "dewmargin/caution.h"
 #include "dewmargin/event_kind.h"
 #include "dewmargin/version.h"
+#include "watch/watch_command.h"
 
 namespace {
 
@@ -136,6 +137,48 @@ int main(int argc, char** argv) {
                              "\n") +
                  k_caution);
   report->callback([&] { exit_code = run_report(rep, std::cout, std::cerr); });
+
+  // watch: live margins from the retained state topics (tools/dewmargin/watch/).
+  watch_options watch_opts;
+  auto* watch =
+      app.add_subcommand("watch", "Live margins of every zone, worst first, from the broker's retained states");
+  watch->add_option("--config", watch_opts.config_file, "Config file (YAML): broker, TLS, password file and prefix")
+      ->type_name("FILE");
+  watch->add_option("--broker", watch_opts.broker, "Broker URI (tcp://, ssl://); overrides the config's")
+      ->type_name("URI");
+  watch
+      ->add_option("--prefix", watch_opts.prefixes,
+                   "Topic prefix of a site; repeat for several sites on one broker (grouped by site)")
+      ->type_name("P");
+  watch->add_option("--username", watch_opts.username, "Broker user name (without --config)")->type_name("NAME");
+  watch->add_option("--password-file", watch_opts.password_file, "File holding the broker password (first line)")
+      ->type_name("FILE");
+  watch->add_option("--ca-file", watch_opts.ca_file, "CA certificate of the broker (ssl://)")->type_name("FILE");
+  watch->add_option("--by", watch_opts.by, "Your initials, sent with acknowledge and shelve (asked once otherwise)")
+      ->type_name("INITIALS");
+  watch->add_flag("--once", watch_opts.once,
+                  "Print one snapshot once the retained states have arrived (no new one for 0.3 s, at most 5 s "
+                  "after subscribing), then exit");
+  watch->add_option("--width", watch_opts.width, "With --once: columns (default: the terminal's, or 80)")
+      ->check(CLI::Range(26, 1000));
+  watch->add_option("--wait-s", watch_opts.wait_s, "With --once: longest wait for the broker, seconds (default 10)")
+      ->check(CLI::Range(0.1, 600.0));
+  watch->footer(
+      std::string(
+          "\nColumns: zone, band, margin (K), dew point, coldest surface, supply water (degC), minutes to\n"
+          "condensation, valve ('*': held, see the last column), alarm (ACTIVE, acked, latched, shelved,\n"
+          "suppr), age of the state. Worst zone first: unknown, condensing, alarm, tight, safe, then the\n"
+          "lowest margin. Narrower than 80 columns, columns drop in this order: why held, age, water,\n"
+          "dew point, surface, to wet, valve, alarm.\n\n"
+          "Keys: q or Ctrl-C quits. Type a command and Enter: a ZONE [NOTE] acknowledges, s ZONE MIN\n"
+          "[REASON] shelves for MIN minutes, u ZONE unshelves; the service's answer is shown. Colour only\n"
+          "on a terminal and when NO_COLOR is unset.\n\n"
+          "Examples:\n"
+          "  dewmargin watch --config /etc/dewmargin/dewmargin.yaml --by JK\n"
+          "  dewmargin watch --config /etc/dewmargin/dewmargin.yaml --once\n"
+          "  dewmargin watch --broker tcp://central:1883 --prefix bldg-a/dewmargin --prefix bldg-b/dewmargin\n\n") +
+      k_caution);
+  watch->callback([&] { exit_code = run_watch(watch_opts, std::cout, std::cerr); });
 
   try {
     app.parse(argc, argv);

@@ -93,6 +93,9 @@ void read_loops(const YAML::Node& node, source_mark at, reading& r);
 void read_zones(const YAML::Node& node, source_mark at, reading& r);
 void read_dehumidifiers(const YAML::Node& node, source_mark at, reading& r);
 
+// The `http:` section (read_http.cpp).
+void read_http(const YAML::Node& node, reading& r);
+
 // The whole document: sections, then the checks across them.
 void read_site(const YAML::Node& root, reading& r);
 void check_across_sections(reading& r);

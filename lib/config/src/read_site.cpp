@@ -209,7 +209,7 @@ void read_site(const YAML::Node& root, reading& r) {
   }
   const map_reader top(root, "",
                        {"site", "broker", "storage", "publish", "defaults", "plausibility", "logging", "clock", "loops",
-                        "zones", "dehumidifiers"},
+                        "zones", "dehumidifiers", "http"},
                        r.diag);
   non_empty_text(top, "site", presence::required, r.config.site);
   if (auto n = section(top, "broker", presence::required, " like { uri: ..., client_id: ... }")) read_broker(*n, r);
@@ -223,6 +223,7 @@ void read_site(const YAML::Node& root, reading& r) {
   }
   if (auto n = section(top, "logging", presence::optional, " like { level: info }")) read_logging(*n, r);
   if (auto n = section(top, "clock", presence::optional, " like { source: readings, field: /ts }")) read_clock(*n, r);
+  if (auto n = section(top, "http", presence::optional, " like { listen: \"127.0.0.1:8088\" }")) read_http(*n, r);
   if (top.has("loops")) read_loops(*top.value("loops"), top.value_mark("loops"), r);
   if (top.require("zones")) read_zones(*top.value("zones"), top.value_mark("zones"), r);
   if (top.has("dehumidifiers")) read_dehumidifiers(*top.value("dehumidifiers"), top.value_mark("dehumidifiers"), r);

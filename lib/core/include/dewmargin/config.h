@@ -143,6 +143,14 @@ struct clock_config {
   std::string field = "/ts";
 };
 
+// The service's local web server (live page, JSON states, Prometheus metrics); off unless
+// the config has an `http:` section. Any address but loopback needs a bearer token.
+struct http_config {
+  std::string host = "127.0.0.1";  // from `listen: "HOST:PORT"`
+  int port = 8088;
+  std::string token_file;  // the bearer token (first line); read at start
+};
+
 struct site_config {
   std::string site;
   broker_config broker;
@@ -155,6 +163,7 @@ struct site_config {
   std::vector<loop_config> loops;
   std::vector<zone_config> zones;
   std::vector<dehumidifier_config> dehumidifiers;
+  std::optional<http_config> http;
 };
 
 }  // namespace dewmargin
