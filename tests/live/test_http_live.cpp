@@ -8,6 +8,7 @@
 #include <sys/socket.h>
 #include <unistd.h>
 
+#include <filesystem>
 #include <fstream>
 
 #include "exposition_format_check.h"
@@ -164,6 +165,9 @@ TEST(LiveHttp, TheTokenIsEnforced) {
   temp_dir secrets;
   const auto token_file = secrets.path() / "http.token";
   std::ofstream(token_file) << "s3cret-token-for-tests\n";
+  // A secret readable by group or others is refused (see the password file rule).
+  std::filesystem::permissions(token_file, std::filesystem::perms::owner_read | std::filesystem::perms::owner_write,
+                               std::filesystem::perm_options::replace);
   live_site site(", token_file: " + token_file.string());
   site.start_and_wait();
   auto c = site.client();

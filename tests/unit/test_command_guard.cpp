@@ -42,26 +42,29 @@ TEST(CommandGuard, ReportsTheRateLimitAtMostOnceASecond) {
   EXPECT_TRUE(g.report_rate_limit(at_ms(1000)));
 }
 
-TEST(CommandGuard, ReportsEachChangeOfTopicOrKindAndRepeatsOnlyAfterTheWindow) {
+TEST(CommandGuard, ReportsEachChangeOfTopicKindOrReasonAndRepeatsOnlyAfterTheWindow) {
   command_guard g;
   struct step {
     std::int64_t ms;
     const char* topic;
     rejection_kind kind;
+    const char* reason;
     bool reported;
   };
   const step steps[] = {
-      {0, "dm/cmd/ack", rejection_kind::refused, true},
-      {1000, "dm/cmd/ack", rejection_kind::refused, false},
-      {2000, "dm/cmd/ack", rejection_kind::malformed, true},
-      {3000, "dm/cmd/shelve", rejection_kind::malformed, true},
-      {4000, "dm/cmd/shelve", rejection_kind::malformed, false},
-      {12999, "dm/cmd/shelve", rejection_kind::malformed, false},
-      {13000, "dm/cmd/shelve", rejection_kind::malformed, true},
+      {0, "dm/cmd/ack", rejection_kind::refused, "nothing to acknowledge", true},
+      {1000, "dm/cmd/ack", rejection_kind::refused, "nothing to acknowledge", false},
+      {2000, "dm/cmd/ack", rejection_kind::malformed, "not JSON", true},
+      // The operator corrects one mistake and makes another: told again at once.
+      {2500, "dm/cmd/ack", rejection_kind::malformed, "by is required", true},
+      {3000, "dm/cmd/shelve", rejection_kind::malformed, "minutes out of range", true},
+      {4000, "dm/cmd/shelve", rejection_kind::malformed, "minutes out of range", false},
+      {12999, "dm/cmd/shelve", rejection_kind::malformed, "minutes out of range", false},
+      {13000, "dm/cmd/shelve", rejection_kind::malformed, "minutes out of range", true},
   };
   for (const auto& s : steps) {
-    EXPECT_EQ(g.report_rejection(s.topic, s.kind, at_ms(s.ms)), s.reported)
-        << s.ms << " " << s.topic << " " << rejection_kind_name(s.kind);
+    EXPECT_EQ(g.report_rejection(s.topic, s.kind, s.reason, at_ms(s.ms)), s.reported)
+        << s.ms << " " << s.topic << " " << rejection_kind_name(s.kind) << " " << s.reason;
   }
 }
 

@@ -45,12 +45,14 @@ bool command_guard::report_rate_limit(timestamp now) {
   return true;
 }
 
-bool command_guard::report_rejection(const std::string& topic, rejection_kind kind, timestamp now) {
-  const bool repeat = last_kind_ == kind && last_topic_ == topic && last_report_ &&
+bool command_guard::report_rejection(const std::string& topic, rejection_kind kind, const std::string& reason,
+                                     timestamp now) {
+  const bool repeat = last_kind_ == kind && last_topic_ == topic && last_reason_ == reason && last_report_ &&
                       seconds_between(*last_report_, now) < k_rejection_repeat_s;
   if (repeat) return false;
   last_topic_ = topic;
   last_kind_ = kind;
+  last_reason_ = reason;
   last_report_ = now;
   return true;
 }

@@ -84,7 +84,7 @@ void engine::state::emit_command_event(const zone_rt& z, const operator_command&
 void engine::state::reject(const std::string& topic, const std::string& verb, const std::string& zone,
                            rejection_kind kind, const std::string& reason, timestamp now, engine_output& out) {
   ++counters.rejected;
-  if (!commands.report_rejection(topic, kind, now)) {
+  if (!commands.report_rejection(topic, kind, reason, now)) {
     ++counters.suppressed_rejections;
     return;
   }

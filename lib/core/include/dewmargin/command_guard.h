@@ -4,8 +4,9 @@
 //   - at most k_command_rate_per_s commands a second, bursts of k_command_burst (a token
 //     bucket in event time); the rest are dropped, counted, and reported by at most one
 //     `rejected` event a second;
-//   - one `rejected` event per change of (topic, kind of rejection); the same rejection
-//     again within k_rejection_repeat_s is counted, not reported.
+//   - one `rejected` event per change of (topic, kind of rejection, reason); the same
+//     rejection again within k_rejection_repeat_s is counted, not reported. The reason is part
+//     of the key so that an operator who corrects one mistake and makes another is told so.
 #include <cstdint>
 #include <optional>
 #include <string>
@@ -49,7 +50,7 @@ class command_guard {
   // True when a `rate_limited` rejection should be reported now (at most once a second).
   bool report_rate_limit(timestamp now);
   // True when this rejection should become an event; false when it repeats the last one.
-  bool report_rejection(const std::string& topic, rejection_kind kind, timestamp now);
+  bool report_rejection(const std::string& topic, rejection_kind kind, const std::string& reason, timestamp now);
 
   [[nodiscard]] std::uint64_t dropped() const { return dropped_; }
 
@@ -59,6 +60,7 @@ class command_guard {
   std::optional<timestamp> last_rate_report_;
   std::string last_topic_;
   std::optional<rejection_kind> last_kind_;
+  std::string last_reason_;
   std::optional<timestamp> last_report_;
 };
 
