@@ -23,13 +23,13 @@
 
 namespace dewmargin::daemon {
 
-// Bytes outside printable ASCII as \xNN, at most max_bytes of the input, so that a report
-// can never carry invalid UTF-8 or control characters into a log line or a JSON document.
-std::string escape_for_report(const std::string& text, std::size_t max_bytes = 200);
+// Topics and error texts are quoted in reports as safe_text.h's text_excerpt() of at most
+// this many bytes: valid UTF-8, control characters escaped, cut between characters.
+inline constexpr std::size_t k_report_bytes = 200;
 
 struct containment_report {
-  std::string topic;                 // escaped
-  std::string error;                 // escaped
+  std::string topic;                 // safe text (text_excerpt)
+  std::string error;                 // safe text (text_excerpt)
   std::uint64_t dropped_since_last;  // messages dropped since the previous report, this one excluded
 };
 

@@ -1,8 +1,8 @@
 #include "service.h"
 
 #include <chrono>
-#include <optional>
 #include <nlohmann/json.hpp>
+#include <optional>
 #include <string>
 #include <thread>
 #include <vector>
@@ -12,9 +12,10 @@
 #include "dewmargin/http_server.h"
 #include "dewmargin/json_dump.h"
 #include "dewmargin/live_snapshot.h"
-#include "dewmargin/secret_file.h"
 #include "dewmargin/mqtt_link.h"
 #include "dewmargin/restart_needed.h"
+#include "dewmargin/safe_text.h"
+#include "dewmargin/secret_file.h"
 #include "dewmargin/store_writer.h"
 #include "dewmargin/tick_driver.h"
 #include "dewmargin/version.h"
@@ -75,14 +76,14 @@ class service {
   int run() {
     auto loaded = load_config_file(options_.config_path);
     if (!loaded.ok()) {
-      for (const auto& d : loaded.errors) log_->error("{}", escape_for_report(d.to_string(), 400));
+      for (const auto& d : loaded.errors) log_->error("{}", text_excerpt(d.to_string(), 400));
       return 2;
     }
     if (!apply_log_level(*loaded.config)) return 2;
     core_ = std::make_unique<engine>(std::move(*loaded.config));
     const site_config& cfg = core_->config();
-    log_->info("dewmargind {} starting: site {}, {} zones, {} loops, broker {}", k_version, cfg.site,
-               cfg.zones.size(), cfg.loops.size(), cfg.broker.uri);
+    log_->info("dewmargind {} starting: site {}, {} zones, {} loops, broker {}", k_version, cfg.site, cfg.zones.size(),
+               cfg.loops.size(), cfg.broker.uri);
 
     auto link = mqtt_link::create(link_options(cfg));
     if (!link) {
@@ -323,9 +324,13 @@ class service {
       }
       notifier_.keep_alive(after);
       switch (signals_.poll()) {
-        case signal_request::none: break;
-        case signal_request::reload: reload_contained(); break;
-        case signal_request::stop: return;
+        case signal_request::none:
+          break;
+        case signal_request::reload:
+          reload_contained();
+          break;
+        case signal_request::stop:
+          return;
       }
     }
   }
@@ -367,8 +372,7 @@ class service {
   // what it produced before a fault still goes out, since the core's state already
   // reflects it. Publishing and storing are outside: a fault there stops the service.
   void contain(const inbound_message& msg, timestamp now) {
-    (void)containment_.run(msg.topic,
-                           [&] { core_->on_message(msg.topic, msg.payload, now, batch_, msg.retained); });
+    (void)containment_.run(msg.topic, [&] { core_->on_message(msg.topic, msg.payload, now, batch_, msg.retained); });
     if (!batch_.empty()) dispatch();
   }
 
@@ -411,7 +415,7 @@ class service {
     } catch (const std::exception& e) {
       if (core_.get() != before) throw;
       batch_.clear();  // what the new config produced before the fault must not go out
-      const std::string why = escape_for_report(e.what());
+      const std::string why = text_excerpt(e.what(), k_report_bytes);
       log_->error("reload of {} failed: {}; the previous config stays in force", options_.config_path.string(), why);
       core_->service_event(service_now(), "running", "running",
                            "reload rejected (" + why + "); the previous config stays in force", batch_);
@@ -428,10 +432,10 @@ class service {
     auto loaded = load_config_file(options_.config_path);
     const timestamp now = service_now();
     if (!loaded.ok()) {
-      for (const auto& d : loaded.errors) log_->error("{}", escape_for_report(d.to_string(), 400));
+      for (const auto& d : loaded.errors) log_->error("{}", text_excerpt(d.to_string(), 400));
       // The file may hold anything (binary junk): escaped before it goes into an event.
-      const std::string first =
-          loaded.errors.empty() ? std::string("unknown error") : escape_for_report(loaded.errors.front().to_string());
+      const std::string first = loaded.errors.empty() ? std::string("unknown error")
+                                                      : text_excerpt(loaded.errors.front().to_string(), k_report_bytes);
       core_->service_event(now, "running", "running",
                            "reload rejected (" + std::to_string(loaded.errors.size()) + " errors; first: " + first +
                                "); the previous config stays in force",
@@ -443,7 +447,7 @@ class service {
     for (const auto& setting : restart_needed(core_->config(), *loaded.config)) {
       log_->warn("reload: {} changed; it takes effect at the next restart", setting);
     }
-    auto fresh = std::make_unique<engine>(std::move(*loaded.config));
+    auto fresh = std::make_unique<engine>(with_start_settings_of(core_->config(), std::move(*loaded.config)));
     if (!apply_log_level(fresh->config())) log_->warn("logging level unchanged");
     if (!started_) {
       // Event time has not started yet: nothing to carry over.

@@ -8,6 +8,7 @@
 #include <thread>
 
 #include "fault_support.h"
+#include "dewmargin/safe_text.h"
 #include "message_containment.h"
 
 namespace dewmargin::test_support {
@@ -187,7 +188,7 @@ TEST(FaultPayloads, MalformedPayloadsAndCommandsChangeNothingAndAreNamed) {
     row.survived = up ? 1 : 0;
     row.crashes = up ? 0 : 1;
     row.figures =
-        event ? "reason: " + short_text(daemon::escape_for_report(as_json(*event).value("reason", ""))) : "no event";
+        event ? "reason: " + short_text(printable_text(as_json(*event).value("reason", ""))) : "no event";
     if (!changes.empty()) row.figures += "; CHANGED: " + changes;
     row.passed = up && event && changes.empty();
     if (!row.passed) row.why = up ? "seen: " + row.figures : "the service exited";
@@ -208,7 +209,7 @@ TEST(FaultPayloads, MalformedPayloadsAndCommandsChangeNothingAndAreNamed) {
   for (const std::string& junk : {std::string("maybe"), std::string("[[[["), std::string("\x80"), std::string(""),
                                   std::string("2"), std::string(3, '\0')}) {
     fault_row row;
-    row.name = "payload r/a/wet after a wet 1: " + short_text(daemon::escape_for_report(junk));
+    row.name = "payload r/a/wet after a wet 1: " + short_text(printable_text(junk));
     row.injected = 1;
     row.expected = "input event naming the topic, zone stays condensing";
     std::size_t from = site.watcher->size();
@@ -225,7 +226,7 @@ TEST(FaultPayloads, MalformedPayloadsAndCommandsChangeNothingAndAreNamed) {
     row.crashes = up ? 0 : 1;
     row.figures =
         std::string(wet && (*wet)["to"] == "condensing" ? "condensing on 1" : "NOT condensing on 1") + "; " +
-        (event ? "reason: " + short_text(daemon::escape_for_report(as_json(*event).value("reason", ""))) : "no event");
+        (event ? "reason: " + short_text(printable_text(as_json(*event).value("reason", ""))) : "no event");
     if (!changes.empty()) row.figures += "; CHANGED: " + changes;
     row.passed = up && wet && (*wet)["to"] == "condensing" && event && changes.empty();
     if (!row.passed) row.why = up ? "seen: " + row.figures : "the service exited";
@@ -235,6 +236,8 @@ TEST(FaultPayloads, MalformedPayloadsAndCommandsChangeNothingAndAreNamed) {
     site.watcher->publish("r/a/wet", "0");
     (void)site.wait_zone(
         "room-a", [](const nlohmann::json& j) { return j["band"] == "safe"; }, 3s, reset_from);
+    // The valve reopens after reopen_after_s; wait for it, so that the next row starts settled.
+    (void)site.watcher->wait_for_payload("r/a/valve", "open", 5s, reset_from);
   }
 
   // 1,000 commands in one second.

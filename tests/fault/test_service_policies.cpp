@@ -6,6 +6,7 @@
 #include <stdexcept>
 #include <vector>
 
+#include "dewmargin/safe_text.h"
 #include "event_log_budget.h"
 #include "logging.h"
 #include "message_containment.h"
@@ -81,16 +82,16 @@ TEST(MessageContainment, AThrowingReporterIsNotContained) {
   EXPECT_THROW(c.run("t", [] { throw std::runtime_error("x"); }), std::runtime_error);
 }
 
-TEST(EscapeForReport, KeepsPrintableAsciiAndEscapesEverythingElse) {
-  const struct {
-    std::string in;
-    std::string out;
-  } cases[] = {
-      {"r/a/temp", "r/a/temp"},          {std::string("\x80", 1), "\\x80"}, {std::string("a\0b", 3), "a\\x00b"},
-      {"line\nbreak", "line\\x0abreak"}, {"back\\slash", "back\\x5cslash"}, {"\xc3\xa9", "\\xc3\\xa9"},
-  };
-  for (const auto& c : cases) EXPECT_EQ(escape_for_report(c.in), c.out) << c.in;
-  EXPECT_EQ(escape_for_report(std::string(1000, 'a'), 10), "aaaaaaaaaa...");
+TEST(MessageContainment, ReportsQuoteTopicAndErrorAsSafeText) {
+  std::vector<containment_report> reports;
+  message_containment c(60s, [&](const containment_report& r) { reports.push_back(r); });
+  const std::string topic = std::string("r/a/\x80\n", 6) + std::string(500, 't');
+  c.run(topic, [] { throw std::runtime_error(std::string("bad \xc3 byte\r", 12)); });
+  ASSERT_EQ(reports.size(), 1u);
+  EXPECT_EQ(reports[0].topic, text_excerpt(topic, k_report_bytes));
+  EXPECT_TRUE(is_valid_utf8(reports[0].topic));
+  EXPECT_EQ(reports[0].topic.find('\n'), std::string::npos);
+  EXPECT_EQ(reports[0].error, "bad \xEF\xBF\xBD byte\\r");
 }
 
 TEST(EventLogBudget, AlarmRelatedEventsAreAlwaysWritten) {

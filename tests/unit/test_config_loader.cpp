@@ -122,6 +122,7 @@ TEST(ConfigLoader, MinimalConfigTakesTheDocumentedDefaults) {
   EXPECT_EQ(c.storage.path, "/tmp/dewmargin-test.db");
   EXPECT_EQ(c.storage.keep_events_days, 730.0);
   EXPECT_EQ(c.storage.keep_samples_days, 400.0);
+  EXPECT_EQ(c.storage.keep_minute_samples_days, 35.0);
   EXPECT_EQ(c.publish.prefix, "dewmargin");
   EXPECT_EQ(c.publish.min_interval_s, 5.0);
   EXPECT_EQ(c.logging.level, "info");
@@ -366,6 +367,10 @@ const text_case k_rule_cases[] = {
     {"retention_zero",
      "site: s\nbroker: {uri: tcp://h, client_id: c}\nstorage: {path: p, keep_samples_days: 0}\n" + k_loop + k_zone, 3,
      39, "'keep_samples_days' must be greater than 0, got 0"},
+    {"rollup_zero",
+     "site: s\nbroker: {uri: tcp://h, client_id: c}\nstorage: {path: p, keep_minute_samples_days: 0}\n" + k_loop +
+         k_zone,
+     3, 46, "'keep_minute_samples_days' must be greater than 0, got 0"},
     {"logging_level", k_head + "logging: {level: loud}\n" + k_loop + k_zone, 4, 18,
      "logging level 'loud' is not one of trace, debug, info"},
     {"clock_source", k_head + "clock: {source: gps}\n" + k_loop + k_zone, 4, 17,

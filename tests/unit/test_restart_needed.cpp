@@ -56,6 +56,9 @@ TEST(RestartNeeded, NamesEachSettingReadOnlyAtStart) {
       {"history path", [](site_config& s) { s.storage.path = "/tmp/h.db"; }, {"storage.path"}},
       {"event retention", [](site_config& s) { s.storage.keep_events_days = 30; }, {"storage.keep_events_days"}},
       {"sample retention", [](site_config& s) { s.storage.keep_samples_days = 30; }, {"storage.keep_samples_days"}},
+      {"minute sample roll-up",
+       [](site_config& s) { s.storage.keep_minute_samples_days = 7; },
+       {"storage.keep_minute_samples_days"}},
       {"prefix", [](site_config& s) { s.publish.prefix = "dm2"; }, {"publish.prefix"}},
       {"clock source", [](site_config& s) { s.clock.source = clock_source::readings; }, {"clock.source"}},
       {"new zone input topic",
@@ -71,6 +74,11 @@ TEST(RestartNeeded, NamesEachSettingReadOnlyAtStart) {
          s.storage.path = "x.db";
        },
        {"broker.keepalive_s", "storage.path", "publish.prefix"}},
+      {"http listen",
+       [](site_config& s) {
+         s.http = http_config{"127.0.0.1", 9090, ""};
+       },
+       {"http"}},
       // At once, no restart:
       {"thresholds", [](site_config& s) { s.zones[0].thresholds.margin_warn_k = 3.0; }, {}},
       {"publish interval", [](site_config& s) { s.publish.min_interval_s = 1; }, {}},
@@ -84,6 +92,38 @@ TEST(RestartNeeded, NamesEachSettingReadOnlyAtStart) {
     c.change(fresh);
     EXPECT_EQ(restart_needed(base_site(), fresh), c.expected) << c.name;
   }
+}
+
+TEST(RestartNeeded, ReloadKeepsTheStartSettingsAndTakesTheRest) {
+  site_config running = base_site();
+  running.http = http_config{"127.0.0.1", 8088, ""};
+  site_config fresh = base_site();
+  fresh.broker.uri = "tcp://elsewhere:1883";
+  fresh.broker.keepalive_s = 99;
+  fresh.storage.path = "other.db";
+  fresh.storage.keep_events_days = 1;
+  fresh.publish.prefix = "other";
+  fresh.publish.min_interval_s = 1;
+  fresh.clock.source = clock_source::readings;
+  fresh.clock.field = "/time";
+  fresh.http.reset();
+  fresh.zones[0].thresholds.margin_warn_k = 3.0;
+
+  const site_config applied = with_start_settings_of(running, fresh);
+  EXPECT_EQ(applied.broker.uri, running.broker.uri);
+  EXPECT_EQ(applied.broker.keepalive_s, running.broker.keepalive_s);
+  EXPECT_EQ(applied.storage.path, running.storage.path);
+  EXPECT_EQ(applied.storage.keep_events_days, running.storage.keep_events_days);
+  EXPECT_EQ(applied.publish.prefix, running.publish.prefix);
+  EXPECT_EQ(applied.clock.source, running.clock.source);
+  ASSERT_TRUE(applied.http.has_value());
+  EXPECT_EQ(applied.http->port, 8088);
+  // Everything else is the new file's.
+  EXPECT_EQ(applied.publish.min_interval_s, 1);
+  EXPECT_EQ(applied.clock.field, "/time");
+  EXPECT_EQ(applied.zones[0].thresholds.margin_warn_k, 3.0);
+  // Nothing that needs a restart is left different from what runs.
+  EXPECT_TRUE(restart_needed(running, applied).empty());
 }
 
 TEST(RestartNeeded, ListsInputTopicsOnceInConfigOrder) {

@@ -107,11 +107,12 @@ void read_broker(const YAML::Node& node, reading& r) {
 }
 
 void read_storage(const YAML::Node& node, reading& r) {
-  const map_reader m(node, "storage", {"path", "keep_events_days", "keep_samples_days"}, r.diag);
+  const map_reader m(node, "storage", {"path", "keep_events_days", "keep_samples_days", "keep_minute_samples_days"}, r.diag);
   storage_config& s = r.config.storage;
   non_empty_text(m, "path", presence::required, s.path);
   m.number_into("keep_events_days", number_rule::positive, s.keep_events_days);
   m.number_into("keep_samples_days", number_rule::positive, s.keep_samples_days);
+  m.number_into("keep_minute_samples_days", number_rule::positive, s.keep_minute_samples_days);
 }
 
 void read_publish(const YAML::Node& node, reading& r) {

@@ -29,6 +29,18 @@ void compare_tls(const std::optional<tls_config>& old_tls, const std::optional<t
   d.compare("broker.tls.key_file", old_tls->key_file, new_tls->key_file);
 }
 
+void compare_http(const std::optional<http_config>& old_http, const std::optional<http_config>& new_http,
+                  differences& d) {
+  if (old_http.has_value() != new_http.has_value()) {
+    d.add("http");
+    return;
+  }
+  if (!old_http) return;
+  d.compare("http.listen", old_http->host + ":" + std::to_string(old_http->port),
+            new_http->host + ":" + std::to_string(new_http->port));
+  d.compare("http.token_file", old_http->token_file, new_http->token_file);
+}
+
 void add_topic(const input_config& in, std::vector<std::string>& topics) {
   if (std::find(topics.begin(), topics.end(), in.topic) == topics.end()) topics.push_back(in.topic);
 }
@@ -52,6 +64,15 @@ std::vector<std::string> input_topics(const site_config& c) {
   return topics;
 }
 
+site_config with_start_settings_of(const site_config& running, site_config fresh) {
+  fresh.broker = running.broker;
+  fresh.storage = running.storage;
+  fresh.publish.prefix = running.publish.prefix;
+  fresh.clock.source = running.clock.source;
+  fresh.http = running.http;
+  return fresh;
+}
+
 std::vector<std::string> restart_needed(const site_config& old, const site_config& fresh) {
   differences d;
   const broker_config& ob = old.broker;
@@ -65,8 +86,11 @@ std::vector<std::string> restart_needed(const site_config& old, const site_confi
   d.compare("storage.path", old.storage.path, fresh.storage.path);
   d.compare("storage.keep_events_days", old.storage.keep_events_days, fresh.storage.keep_events_days);
   d.compare("storage.keep_samples_days", old.storage.keep_samples_days, fresh.storage.keep_samples_days);
+  d.compare("storage.keep_minute_samples_days", old.storage.keep_minute_samples_days,
+            fresh.storage.keep_minute_samples_days);
   d.compare("publish.prefix", old.publish.prefix, fresh.publish.prefix);
   d.compare("clock.source", old.clock.source, fresh.clock.source);
+  compare_http(old.http, fresh.http, d);
   // Subscriptions are made at start: a new topic is not received until then. A topic no
   // longer read needs nothing (its messages are simply not routed).
   const std::vector<std::string> subscribed = input_topics(old);

@@ -86,6 +86,7 @@ store_writer_options store_writer_options_from(const storage_config& storage) {
   o.path = storage.path;
   o.keep_events_days = storage.keep_events_days;
   o.keep_samples_days = storage.keep_samples_days;
+  o.keep_minute_samples_days = storage.keep_minute_samples_days;
   return o;
 }
 

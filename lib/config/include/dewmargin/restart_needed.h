@@ -14,6 +14,12 @@ namespace dewmargin {
 // "input topic 'bldg/l2e/rh' (new)", ... Empty when the reload takes full effect.
 [[nodiscard]] std::vector<std::string> restart_needed(const site_config& old, const site_config& fresh);
 
+// `fresh` with the settings read only at start taken from `running` (broker, storage, publish
+// prefix, clock source, http): a reload applies the rest at once and never half-applies these
+// (a new prefix in the core while the status topic, the will and the subscriptions stay on the
+// old one). Warn with restart_needed() first.
+[[nodiscard]] site_config with_start_settings_of(const site_config& running, site_config fresh);
+
 // Every topic the config reads (inputs of loops and zones), each once, in config order.
 [[nodiscard]] std::vector<std::string> input_topics(const site_config& config);
 

@@ -108,6 +108,7 @@ struct storage_config {
   std::string path = "/var/lib/dewmargin/history.db";
   double keep_events_days = 730.0;
   double keep_samples_days = 400.0;
+  double keep_minute_samples_days = 35.0;  // older per-minute samples are rolled up into hours
 };
 
 struct publish_config {
