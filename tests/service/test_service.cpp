@@ -140,7 +140,7 @@ TEST_F(Service, BadCommandIsRejectedAndChangesNothing) {
   watcher_->publish("dm/cmd/shelve", R"({"zone":"room-a","by":"tj","minutes":5000})");
   const auto rejected = wait_event(*watcher_, "rejected", "room-a", 5s, from);
   ASSERT_TRUE(rejected);
-  EXPECT_EQ((*rejected)["reason"], "'minutes' must be a whole number from 1 to 1440");
+  EXPECT_EQ((*rejected)["reason"], "'minutes' must be a whole number from 1 to 1440 (got 5000)");
   EXPECT_FALSE(wait_event(*watcher_, "shelve", "room-a", 500ms, from));
 }
 

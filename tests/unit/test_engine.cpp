@@ -378,13 +378,13 @@ INSTANTIATE_TEST_SUITE_P(
         command_case{"NothingToAck", "dm/cmd/ack", R"({"zone":"z1","by":"ab"})", "nothing to acknowledge"},
         command_case{"MissingBy", "dm/cmd/ack", R"({"zone":"z1"})", "missing 'by' (who gives the command)"},
         command_case{"MinutesZero", "dm/cmd/shelve", R"({"zone":"z1","by":"ab","minutes":0})",
-                     "'minutes' must be a whole number from 1 to 1440"},
+                     "'minutes' must be a whole number from 1 to 1440 (got 0)"},
         command_case{"MinutesTooMany", "dm/cmd/shelve", R"({"zone":"z1","by":"ab","minutes":1441})",
-                     "'minutes' must be a whole number from 1 to 1440"},
+                     "'minutes' must be a whole number from 1 to 1440 (got 1441)"},
         command_case{"UnshelveNotShelved", "dm/cmd/unshelve", R"({"zone":"z1","by":"ab"})", "zone is not shelved"},
         command_case{"UnknownVerb", "dm/cmd/silence", R"({"zone":"z1","by":"ab"})",
                      "unknown command 'silence' (ack, shelve, unshelve)"},
-        command_case{"NotJson", "dm/cmd/ack", "ack z1", "payload is not valid JSON"}),
+        command_case{"NotJson", "dm/cmd/ack", "ack z1", "payload is not valid JSON (at byte 1)"}),
     [](const ::testing::TestParamInfo<command_case>& c) { return std::string(c.param.name); });
 
 TEST(Engine, AcknowledgeThenReturnToNormal) {

@@ -3,6 +3,7 @@
 #include <cmath>
 #include <nlohmann/json.hpp>
 
+#include "dewmargin/safe_text.h"
 #include "dewmargin/zone_alarm.h"
 
 namespace dewmargin {
@@ -31,9 +32,12 @@ result<std::string> optional_text(const nlohmann::json& doc, const char* key) {
 
 const char* command_verb_name(command_verb v) {
   switch (v) {
-    case command_verb::ack: return "ack";
-    case command_verb::shelve: return "shelve";
-    case command_verb::unshelve: return "unshelve";
+    case command_verb::ack:
+      return "ack";
+    case command_verb::shelve:
+      return "shelve";
+    case command_verb::unshelve:
+      return "unshelve";
   }
   return "ack";
 }
@@ -53,7 +57,24 @@ result<operator_command> parse_operator_command(std::string_view verb_text, std:
     return make_error(error_code::out_of_range, "command too large (" + std::to_string(payload.size()) +
                                                     " bytes, at most " + std::to_string(k_max_command_bytes) + ")");
   }
-  const nlohmann::json doc = nlohmann::json::parse(payload.begin(), payload.end(), nullptr, false);
+  // Each way of being unreadable has its own reason, naming the byte: an operator who corrects
+  // one mistake and makes another is told so (repeats of one reason are counted, not reported).
+  std::string unreadable;
+  if (payload.empty()) {
+    unreadable = "payload is empty (a JSON object is expected)";
+  } else if (const std::size_t bad = first_invalid_utf8(payload); bad != std::string_view::npos) {
+    unreadable = "payload is not valid UTF-8 (at byte " + std::to_string(bad + 1) + ")";
+  }
+  nlohmann::json doc = nlohmann::json(nlohmann::json::value_t::discarded);
+  if (unreadable.empty()) {
+    try {
+      doc = nlohmann::json::parse(payload.begin(), payload.end());
+    } catch (const nlohmann::json::parse_error& e) {
+      unreadable = "payload is not valid JSON (at byte " + std::to_string(e.byte) + ")";
+    } catch (const nlohmann::json::exception&) {  // a number beyond double, such as 1e999
+      unreadable = "payload is not valid JSON (a number out of range)";
+    }
+  }
   // The zone is taken first so that every rejection, also of an unknown verb, can name it.
   if (doc.is_object() && doc.contains("zone") && doc["zone"].is_string()) {
     zone_out = bounded(doc["zone"].get<std::string>());
@@ -67,7 +88,7 @@ result<operator_command> parse_operator_command(std::string_view verb_text, std:
   }
   cmd.verb = *verb;
 
-  if (doc.is_discarded()) return make_error(error_code::parse_error, "payload is not valid JSON");
+  if (!unreadable.empty()) return make_error(error_code::parse_error, unreadable);
   if (!doc.is_object()) return make_error(error_code::parse_error, "payload must be a JSON object");
 
   if (!doc.contains("zone") || doc["zone"].is_null()) return make_error(error_code::invalid_argument, "missing 'zone'");
@@ -76,7 +97,12 @@ result<operator_command> parse_operator_command(std::string_view verb_text, std:
 
   auto by = optional_text(doc, "by");
   if (!by) return by.err();
-  if (by.value().find_first_not_of(" \t\r\n") == std::string::npos) return make_error(error_code::invalid_argument, "missing 'by' (who gives the command)");
+  if (!doc.contains("by") || doc["by"].is_null()) {
+    return make_error(error_code::invalid_argument, "missing 'by' (who gives the command)");
+  }
+  if (by.value().find_first_not_of(" \t\r\n") == std::string::npos) {
+    return make_error(error_code::invalid_argument, "'by' is blank (who gives the command)");
+  }
   cmd.by = by.value();
 
   auto note = optional_text(doc, "note");
@@ -95,7 +121,8 @@ result<operator_command> parse_operator_command(std::string_view verb_text, std:
     const double minutes = m.get<double>();
     if (!std::isfinite(minutes) || minutes != std::floor(minutes) || minutes < k_min_shelve_minutes ||
         minutes > k_max_shelve_minutes) {
-      return make_error(error_code::out_of_range, "'minutes' must be a whole number from 1 to 1440");
+      return make_error(error_code::out_of_range,
+                        "'minutes' must be a whole number from 1 to 1440 (got " + nlohmann::json(m).dump() + ")");
     }
     cmd.minutes = static_cast<int>(minutes);
   }
