@@ -6,7 +6,9 @@
 //      median of 7 runs (target: under 100 ms).
 //   4. Storage: bytes per zone per day of per-minute samples, then everything rolled up into
 //      hourly rows, bytes per zone-hour, and the size after a year for 200 zones.
-// Usage: dewmargin_report_bench [DIRECTORY] [ZONES] [DAYS]   (default: temp dir, 200, 30)
+// Usage: dewmargin_report_bench [DIRECTORY] [ZONES] [DAYS] [FILE]   (default: temp dir, 200, 30)
+//   FILE: a history file to keep (for profiling the report alone): written when missing, reused
+//   as it is when present; it is not rolled up (step 4 is skipped) and not removed.
 #include <sys/resource.h>
 #include <unistd.h>
 
@@ -82,7 +84,10 @@ int main(int argc, char** argv) {
   const fs::path dir = argc > 1 ? fs::path(argv[1]) : fs::temp_directory_path();
   const int zones = argc > 2 ? std::atoi(argv[2]) : 200;
   const int days = argc > 3 ? std::atoi(argv[3]) : 30;
-  const fs::path file = dir / ("dewmargin_report_bench_" + std::to_string(::getpid()) + ".db");
+  const bool keep_file = argc > 4;
+  const fs::path file =
+      keep_file ? fs::path(argv[4]) : dir / ("dewmargin_report_bench_" + std::to_string(::getpid()) + ".db");
+  const bool reuse = keep_file && fs::exists(file);
 
   dewmargin::store_writer_options options;
   options.path = file;
@@ -91,7 +96,7 @@ int main(int argc, char** argv) {
   options.keep_events_days = 0;
   options.keep_samples_days = 0;
   options.report_error = [](const std::string& line) { std::fprintf(stderr, "store: %s\n", line.c_str()); };
-  {
+  if (!reuse) {
     auto opened = dewmargin::store_writer::open(options);
     if (!opened.ok()) {
       std::fprintf(stderr, "%s\n", opened.err().message.c_str());
@@ -223,6 +228,7 @@ int main(int argc, char** argv) {
   }
   std::printf("history, one zone's month as CSV (%zu events): median %.1f ms of 7\n", rows, median(history_ms));
 
+  if (keep_file) return 0;
   // Everything rolled up into hours, then the file's size.
   {
     options.keep_minute_samples_days = 1.0 / 1440;  // everything older than a minute before "now"

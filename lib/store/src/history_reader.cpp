@@ -75,17 +75,43 @@ class history_reader::impl {
     return store_error{kind, file_.string() + ": " + what + ": " + describe(db_.get(), rc)};
   }
 
-  store_result<std::size_t> for_each_event(const event_filter& f,
-                                           const std::function<void(const stored_event&)>& visit,
+  // A time of store_marks (version 3); a missing row reads as 0 (nothing summarised).
+  int read_mark(const char* name, std::int64_t& out) const {
+    statement stmt;
+    int rc = statement::prepare(db_.get(), "SELECT value_ms FROM store_marks WHERE name = ?1", stmt);
+    if (rc != SQLITE_OK) return rc;
+    stmt.bind_text(1, name);
+    rc = sqlite3_step(stmt.get());
+    out = rc == SQLITE_ROW ? sqlite3_column_int64(stmt.get(), 0) : 0;
+    return rc == SQLITE_ROW || rc == SQLITE_DONE ? SQLITE_OK : rc;
+  }
+
+  // Rows of `select` with `column` in [from_ms, to_ms) (and the zone, when given), by time then zone.
+  std::optional<store_error> scan(const std::string& select, const char* column, const std::optional<std::string>& zone,
+                                  std::int64_t from_ms, std::int64_t to_ms, const char* what,
+                                  const std::function<void(sqlite3_stmt*)>& row) const {
+    where_clause where;
+    if (zone) where.add("zone =", *zone);
+    where.add((std::string(column) + " >=").c_str(), from_ms);
+    where.add((std::string(column) + " <").c_str(), to_ms);
+    const std::string sql = select + where.sql() + " ORDER BY " + column + ", zone";
+    statement stmt;
+    int rc = statement::prepare(db_.get(), sql, stmt);
+    if (rc != SQLITE_OK) return failure(std::string("querying ") + what, rc);
+    where.bind(stmt);
+    while ((rc = sqlite3_step(stmt.get())) == SQLITE_ROW) row(stmt.get());
+    if (rc != SQLITE_DONE) return failure(std::string("reading ") + what, rc);
+    return std::nullopt;
+  }
+  store_result<std::size_t> for_each_event(const event_filter& f, const std::function<void(const stored_event&)>& visit,
                                            bool latest_only = false) const {
     where_clause where;
     if (f.subject_id) where.add("subject_id =", *f.subject_id);
     if (!f.kinds.empty()) where.add_in("kind", f.kinds);
     if (f.since) where.add("ts_ms >=", to_unix_ms(*f.since));
     if (f.until) where.add("ts_ms <", to_unix_ms(*f.until));
-    const std::string sql =
-        "SELECT id, ts_ms, subject_type, subject_id, kind, json FROM events" + where.sql() +
-        (latest_only ? " ORDER BY ts_ms DESC, id DESC LIMIT 1" : " ORDER BY ts_ms, id");
+    const std::string sql = "SELECT id, ts_ms, subject_type, subject_id, kind, json FROM events" + where.sql() +
+                            (latest_only ? " ORDER BY ts_ms DESC, id DESC LIMIT 1" : " ORDER BY ts_ms, id");
     statement stmt;
     int rc = statement::prepare(db_.get(), sql, stmt);
     if (rc != SQLITE_OK) return failure("querying events", rc);
@@ -119,8 +145,8 @@ class history_reader::impl {
     if (f.zone) where.add("zone =", *f.zone);
     if (f.since) where.add("minute_ms >=", to_unix_ms(*f.since));
     if (f.until) where.add("minute_ms <", to_unix_ms(*f.until));
-    const std::string sql =
-        "SELECT " + store_detail::minute_columns(version_) + " FROM zone_samples" + where.sql() + " ORDER BY zone, minute_ms";
+    const std::string sql = "SELECT " + store_detail::minute_columns(version_) + " FROM zone_samples" + where.sql() +
+                            " ORDER BY zone, minute_ms";
     statement stmt;
     int rc = statement::prepare(db_.get(), sql, stmt);
     if (rc != SQLITE_OK) return failure("querying samples", rc);
@@ -139,6 +165,72 @@ class history_reader::impl {
 
   store_result<std::size_t> for_each_period(const sample_filter& f,
                                             const std::function<void(const zone_period&)>& visit) const {
+    if (version_ < 3) return for_each_period_v2(f, visit);
+    // One read transaction: the marks and the rows come from the same committed state (the
+    // service may summarise an hour or delete old minutes meanwhile).
+    sqlite3* db = db_.get();
+    int rc = store_detail::exec(db, "BEGIN");
+    if (rc != SQLITE_OK) return failure("starting a read transaction", rc);
+    struct end_read {
+      sqlite3* db;
+      ~end_read() { store_detail::exec(db, "COMMIT"); }
+    } const end{db};
+    std::int64_t hours_until = 0;
+    std::int64_t minutes_from = 0;
+    rc = read_mark("hours_until", hours_until);
+    if (rc == SQLITE_OK) rc = read_mark("minutes_from", minutes_from);
+    if (rc != SQLITE_OK) return failure("reading store_marks", rc);
+
+    constexpr std::int64_t k_hour = store_detail::k_ms_per_hour;
+    constexpr std::int64_t k_far = std::int64_t{1} << 60;  // beyond any stored time, either way
+    const std::int64_t lo = f.since ? to_unix_ms(*f.since) : -k_far;
+    const std::int64_t hi = f.until ? to_unix_ms(*f.until) : k_far;
+    std::size_t count = 0;
+    zone_period period;
+    zone_sample scratch;
+    const auto hours = [&](std::int64_t from_ms, std::int64_t to_ms) -> std::optional<store_error> {
+      if (from_ms >= to_ms) return std::nullopt;
+      return scan(std::string("SELECT ") + store_detail::k_hour_columns + " FROM zone_hours", "hour_ms", f.zone,
+                  from_ms, to_ms, "hourly roll-ups", [&](sqlite3_stmt* s) {
+                    store_detail::read_hour_row(s, period);
+                    visit(period);
+                    ++count;
+                  });
+    };
+    const auto minutes = [&](std::int64_t from_ms, std::int64_t to_ms) -> std::optional<store_error> {
+      if (from_ms >= to_ms) return std::nullopt;
+      return scan("SELECT " + store_detail::minute_columns(version_) + " FROM zone_samples", "minute_ms", f.zone,
+                  from_ms, to_ms, "samples", [&](sqlite3_stmt* s) {
+                    store_detail::read_minute_row(s, scratch, period);
+                    visit(period);
+                    ++count;
+                  });
+    };
+    // Hours whose minutes are gone (before minutes_from) are read whenever they overlap the range.
+    const std::int64_t first_overlapping_hour = lo - k_hour + 1;
+    std::optional<store_error> e;
+    if (!f.whole_hours) {
+      if (!e) e = hours(first_overlapping_hour, std::min(hi, minutes_from));
+      if (!e) e = minutes(lo, hi);
+    } else {
+      // Whole hours inside [lo, hi) that are summarised come as hours; the edges and the hours
+      // not summarised yet as minutes. In time order: leading edge, hours, the rest.
+      const std::int64_t a = lo + (((k_hour - lo % k_hour) % k_hour + k_hour) % k_hour);  // lo rounded up
+      const std::int64_t b = hi - (((hi % k_hour) + k_hour) % k_hour);                    // hi rounded down
+      const std::int64_t he = std::max(a, std::min(b, hours_until));
+      if (!e) e = hours(first_overlapping_hour, std::min({a, hi, minutes_from}));
+      if (!e) e = minutes(lo, std::min(a, hi));
+      if (!e) e = hours(a, he);
+      if (!e) e = hours(he, std::min(hi, minutes_from));
+      if (!e) e = minutes(he, hi);
+    }
+    if (e) return *e;
+    return count;
+  }
+
+  // Versions 1 and 2: hours (only where the minutes were rolled up) then minutes.
+  store_result<std::size_t> for_each_period_v2(const sample_filter& f,
+                                               const std::function<void(const zone_period&)>& visit) const {
     std::size_t count = 0;
     zone_period period;
     if (version_ >= 2) {
@@ -290,7 +382,8 @@ store_result<std::vector<stored_event>> history_reader::events(const event_filte
 
 store_result<std::optional<stored_event>> history_reader::last_event(const event_filter& filter) const {
   std::optional<stored_event> last;
-  auto r = impl_->for_each_event(filter, [&](const stored_event& e) { last = e; }, true);
+  auto r = impl_->for_each_event(
+      filter, [&](const stored_event& e) { last = e; }, true);
   if (!r.ok()) return r.err();
   return last;
 }
