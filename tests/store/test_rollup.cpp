@@ -89,6 +89,87 @@ TEST(StoreRollup, OldMinutesBecomeHoursThatKeepTheFigures) {
   EXPECT_EQ(z1.band_minutes, (std::array<std::int32_t, k_band_count>{179, 0, 0, 1, 0}));
 }
 
+TEST(StoreRollup, EachCompletedHourIsSummarisedAsItsMinutesArrive) {
+  temp_dir dir;
+  error_sink errors;
+  auto options = store_test::test_options(dir.file("h.db"), errors);
+  options.keep_minute_samples_days = 0;  // no roll-up: the minutes stay beside their hours
+  options.maintenance_interval = std::chrono::hours{1};
+  auto writer = store_test::open_writer(options);
+  writer.enqueue(three_hours());
+  ASSERT_TRUE(writer.flush(k_wait));
+  {
+    raw_db db(dir.file("h.db"));
+    EXPECT_EQ(db.integer("SELECT count(*) FROM zone_hours"), 4) << "hours 0 and 1 are complete, hour 2 is not";
+    EXPECT_EQ(db.integer("SELECT count(*) FROM zone_samples"), 360);
+    EXPECT_EQ(db.integer("SELECT value_ms FROM store_marks WHERE name = 'hours_until'"), k_t0_ms + 120 * k_min_ms);
+    EXPECT_EQ(db.text("SELECT min_margin_k || ' ' || condensing_min || ' ' || mould_min FROM zone_hours WHERE zone = "
+                      "'z1' AND hour_ms = " +
+                      std::to_string(k_t0_ms)),
+              "-0.4 1 20");
+  }
+  // A late sample replaces minute 17 of z1 (a restart within the minute): its hour is summarised
+  // again from the minutes, so nothing is counted twice.
+  engine_output late;
+  zone_sample s;
+  s.minute_start = from_unix_ms(k_t0_ms + 17 * k_min_ms);
+  s.zone = "z1";
+  s.min_margin_k = -1.25;
+  s.worst_band = "condensing";
+  s.surface_rh_pct = 60.0;
+  late.samples.push_back(s);
+  writer.enqueue(late);
+  ASSERT_TRUE(writer.flush(k_wait));
+  // The first minute of hour 3 completes hour 2.
+  engine_output next;
+  s.minute_start = from_unix_ms(k_t0_ms + 180 * k_min_ms);
+  s.min_margin_k = 3.0;
+  s.worst_band = "safe";
+  next.samples.push_back(s);
+  writer.enqueue(next);
+  ASSERT_TRUE(writer.flush(k_wait));
+  writer.stop();
+  EXPECT_TRUE(errors.lines().empty()) << errors.lines().front();
+  raw_db db(dir.file("h.db"));
+  EXPECT_EQ(db.text("SELECT sample_minutes || ' ' || min_margin_k || ' ' || condensing_min FROM zone_hours WHERE zone "
+                    "= 'z1' AND hour_ms = " +
+                    std::to_string(k_t0_ms)),
+            "60 -1.25 1");
+  EXPECT_EQ(db.integer("SELECT count(*) FROM zone_hours"), 6);
+  EXPECT_EQ(db.integer("SELECT value_ms FROM store_marks WHERE name = 'hours_until'"), k_t0_ms + 180 * k_min_ms);
+
+  // The reader: with whole_hours, hours 0-2 come as summaries and the minute of hour 3 as itself.
+  auto reader = history_reader::open(dir.file("h.db"));
+  ASSERT_TRUE(reader.ok()) << reader.err().message;
+  sample_filter f;
+  f.zone = "z1";
+  f.whole_hours = true;
+  std::vector<std::int32_t> lengths;
+  zone_period z1 = empty_period("z1", from_unix_ms(k_t0_ms), 0);
+  auto n = reader.value().for_each_period(f, [&](const zone_period& p) {
+    lengths.push_back(p.length_min);
+    merge_period(z1, p);
+  });
+  ASSERT_TRUE(n.ok()) << n.err().message;
+  EXPECT_EQ(lengths, (std::vector<std::int32_t>{60, 60, 60, 1}));
+  EXPECT_EQ(z1.sample_minutes, 181);
+  EXPECT_EQ(z1.mould_longest_min, 50);
+  // Without whole_hours every kept minute comes as itself.
+  f.whole_hours = false;
+  auto minutes = reader.value().for_each_period(f, [](const zone_period&) {});
+  ASSERT_TRUE(minutes.ok());
+  EXPECT_EQ(minutes.value(), 181u);
+  // A period that starts and ends inside hours: the edges come as minutes.
+  f.whole_hours = true;
+  f.since = from_unix_ms(k_t0_ms + 30 * k_min_ms);
+  f.until = from_unix_ms(k_t0_ms + 150 * k_min_ms);
+  lengths.clear();
+  auto edges = reader.value().for_each_period(f, [&](const zone_period& p) { lengths.push_back(p.length_min); });
+  ASSERT_TRUE(edges.ok());
+  EXPECT_EQ(lengths.size(), 30u + 1u + 30u) << "30 minutes, hour 1, 30 minutes";
+  EXPECT_EQ(lengths[30], 60);
+}
+
 TEST(StoreRollup, RetentionDeletesOldHoursToo) {
   temp_dir dir;
   error_sink errors;

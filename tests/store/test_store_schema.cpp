@@ -52,8 +52,9 @@ TEST(StoreSchema, FreshFileGetsIdentityVersionAndPragmas) {
   EXPECT_EQ(db.integer("PRAGMA user_version"), k_store_schema_version);
   EXPECT_EQ(db.text("PRAGMA journal_mode"), "wal");
   EXPECT_EQ(db.integer("PRAGMA auto_vacuum"), 2) << "2 = INCREMENTAL";
-  EXPECT_EQ(db.texts("SELECT name FROM sqlite_schema WHERE type = 'table' ORDER BY name"),
-            (std::vector<std::string>{"events", "loop_state", "zone_hours", "zone_samples", "zone_state"}));
+  EXPECT_EQ(
+      db.texts("SELECT name FROM sqlite_schema WHERE type = 'table' ORDER BY name"),
+      (std::vector<std::string>{"events", "loop_state", "store_marks", "zone_hours", "zone_samples", "zone_state"}));
   EXPECT_EQ(db.texts("SELECT name FROM sqlite_schema WHERE type = 'index' AND sql IS NOT NULL ORDER BY name"),
             (std::vector<std::string>{"events_by_kind_ts", "events_by_subject_ts", "events_by_ts"}));
   EXPECT_EQ(db.texts("SELECT name FROM pragma_index_info((SELECT name FROM pragma_index_list('zone_samples') "
@@ -143,7 +144,7 @@ TEST(StoreSchema, RefusesANewerVersionForWritingAndReading) {
   auto w = store_writer::open(store_test::test_options(file, errors));
   ASSERT_FALSE(w.ok());
   EXPECT_EQ(w.err().kind, store_error_kind::schema_too_new);
-  EXPECT_TRUE(contains(w.err().message, file.string() + ": schema version 99 is newer than this program knows (2)"))
+  EXPECT_TRUE(contains(w.err().message, file.string() + ": schema version 99 is newer than this program knows (3)"))
       << w.err().message;
   auto r = history_reader::open(file);
   ASSERT_FALSE(r.ok());
@@ -162,7 +163,7 @@ TEST(StoreSchema, ReaderRefusesAnOlderVersionItCannotRead) {
   auto r = history_reader::open(file);
   ASSERT_FALSE(r.ok());
   EXPECT_EQ(r.err().kind, store_error_kind::schema_too_old);
-  EXPECT_TRUE(contains(r.err().message, "schema version 0 is older than this program's (2)")) << r.err().message;
+  EXPECT_TRUE(contains(r.err().message, "schema version 0 is older than this program's (3)")) << r.err().message;
 }
 
 TEST(StoreSchema, ReaderReadsAVersion1FileAsItIs) {
@@ -176,8 +177,9 @@ TEST(StoreSchema, ReaderReadsAVersion1FileAsItIs) {
   {
     raw_db db(file);
     // 2026-07-14T13:00:00Z; 24 °C, 50 %, surface 18 °C.
-    ASSERT_EQ(db.exec("INSERT INTO zone_samples VALUES ('z1', 1784034000000, 5.0, 12.9, 'safe', 24.0, 50.0, 18.0, 16.0)"),
-              SQLITE_OK);
+    ASSERT_EQ(
+        db.exec("INSERT INTO zone_samples VALUES ('z1', 1784034000000, 5.0, 12.9, 'safe', 24.0, 50.0, 18.0, 16.0)"),
+        SQLITE_OK);
   }
   auto r = history_reader::open(file);
   ASSERT_TRUE(r.ok()) << r.err().message;
@@ -209,12 +211,66 @@ TEST(StoreSchema, Version2MigrationKeepsTheSamples) {
   }
   create_with_writer(file);
   raw_db db(file);
-  EXPECT_EQ(db.integer("PRAGMA user_version"), 2);
+  EXPECT_EQ(db.integer("PRAGMA user_version"), k_store_schema_version);
   EXPECT_EQ(db.texts("SELECT zone || ' ' || minute_ms || ' ' || worst_band || ' ' || coalesce(min_margin_k, 'null') "
                      "|| ' ' || coalesce(surface_rh_pct, 'null') FROM zone_samples ORDER BY minute_ms"),
             (std::vector<std::string>{"z1 60000 tight 1.5 null", "z0 120000 unknown null null"}));
-  EXPECT_EQ(db.integer("SELECT count(*) FROM sqlite_schema WHERE name IN ('zone_samples_v1', 'zone_samples_by_minute')"),
-            0);
+  EXPECT_EQ(
+      db.integer("SELECT count(*) FROM sqlite_schema WHERE name IN ('zone_samples_v1', 'zone_samples_by_minute')"), 0);
+}
+
+// A version 2 file: hours rolled up to 02:00, minutes from 02:00 on. Version 3 marks both times
+// at the end of the last hour, so the readers take the hours before it and the minutes after it.
+TEST(StoreSchema, Version3MigrationMarksWhereTheHoursEnd) {
+  temp_dir dir;
+  const auto file = dir.file("history.db");
+  const auto& all = store_detail::schema_migrations();
+  {
+    auto db = open_history_db(file, open_mode::read_write, open_settings{}, {all.at(0), all.at(1)});
+    ASSERT_TRUE(db.ok()) << db.err().message;
+  }
+  {
+    raw_db db(file);
+    ASSERT_EQ(
+        db.exec("INSERT INTO zone_hours (hour_ms, zone, sample_minutes, safe_min, tight_min, alarm_min, "
+                "condensing_min, unknown_min, mould_min, mould_head_min, mould_tail_min, mould_longest_min) "
+                "VALUES (0, 'z1', 60, 60, 0, 0, 0, 0, 0, 0, 0, 0), (3600000, 'z1', 60, 60, 0, 0, 0, 0, 0, 0, 0, 0);"
+                "INSERT INTO zone_samples (minute_ms, zone, worst_band) VALUES (7200000, 'z1', 'safe')"),
+        SQLITE_OK);
+  }
+  {
+    auto db = open_history_db(file, open_mode::read_write, open_settings{}, all);
+    ASSERT_TRUE(db.ok()) << db.err().message;
+  }
+  raw_db db(file);
+  EXPECT_EQ(db.integer("PRAGMA user_version"), 3);
+  EXPECT_EQ(db.texts("SELECT name || ' ' || value_ms FROM store_marks ORDER BY name"),
+            (std::vector<std::string>{"hours_until 7200000", "minutes_from 7200000"}));
+  EXPECT_EQ(db.integer("SELECT count(*) FROM zone_hours"), 2) << "rows survive the migration";
+  EXPECT_EQ(db.integer("SELECT count(*) FROM zone_samples"), 1);
+  auto r = history_reader::open(file);
+  ASSERT_TRUE(r.ok()) << r.err().message;
+  std::vector<std::int32_t> lengths;
+  auto n = r.value().for_each_period({}, [&](const zone_period& p) { lengths.push_back(p.length_min); });
+  ASSERT_TRUE(n.ok()) << n.err().message;
+  EXPECT_EQ(lengths, (std::vector<std::int32_t>{60, 60, 1}));
+}
+
+TEST(StoreSchema, Version3MigrationOfAFileWithoutHoursStartsAtZero) {
+  temp_dir dir;
+  const auto file = dir.file("history.db");
+  const auto& all = store_detail::schema_migrations();
+  {
+    auto db = open_history_db(file, open_mode::read_write, open_settings{}, {all.at(0), all.at(1)});
+    ASSERT_TRUE(db.ok()) << db.err().message;
+  }
+  {
+    auto db = open_history_db(file, open_mode::read_write, open_settings{}, all);
+    ASSERT_TRUE(db.ok()) << db.err().message;
+  }
+  raw_db db(file);
+  EXPECT_EQ(db.texts("SELECT name || ' ' || value_ms FROM store_marks ORDER BY name"),
+            (std::vector<std::string>{"hours_until 0", "minutes_from 0"}));
 }
 
 struct foreign_case {

@@ -174,6 +174,9 @@ store_result<report_data> build_report(const history_reader& reader, const repor
     sf.since = from;
     sf.until = to;
     if (wanted.size() == 1) sf.zone = *wanted.begin();
+    // Buckets of whole hours (periods over about 10 days) are drawn from the hourly summaries:
+    // 60 times fewer rows, the same minimum, band minutes and mould runs.
+    sf.whole_hours = d.layout.whole_hours();
     sample_tasks.push_back(std::async(std::launch::async, [path = reader.path(), sf, layout = d.layout, wanted] {
       return read_samples(path, sf, layout, wanted);
     }));

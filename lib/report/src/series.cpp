@@ -5,8 +5,8 @@
 namespace dewmargin::report {
 
 std::size_t series_layout::index_of(timestamp t) const {
-  if (t <= since || count == 0) return 0;
-  return std::min(count - 1, static_cast<std::size_t>((t - since) / bucket));
+  if (t <= origin || count == 0) return 0;
+  return std::min(count - 1, static_cast<std::size_t>((t - origin) / bucket));
 }
 
 series_layout layout_for(timestamp since, timestamp until, std::size_t max_buckets) {
@@ -23,7 +23,14 @@ series_layout layout_for(timestamp since, timestamp until, std::size_t max_bucke
       break;
     }
   }
-  l.count = static_cast<std::size_t>((span_min + l.bucket.count() - 1) / l.bucket.count());
+  l.origin = l.since;
+  if (l.whole_hours()) {
+    constexpr std::int64_t k_hour_ms = 3'600'000;
+    const std::int64_t since_ms = to_unix_ms(l.since);
+    l.origin = from_unix_ms(since_ms - (((since_ms % k_hour_ms) + k_hour_ms) % k_hour_ms));
+  }
+  const auto grid_min = std::chrono::duration_cast<std::chrono::minutes>(l.until - l.origin).count();
+  l.count = static_cast<std::size_t>((grid_min + l.bucket.count() - 1) / l.bucket.count());
   return l;
 }
 

@@ -1,6 +1,7 @@
 #include "dewmargin/history_reader.h"
 
 #include <algorithm>
+#include <string_view>
 #include <utility>
 #include <variant>
 #include <vector>
@@ -18,7 +19,18 @@ using store_detail::statement;
 
 namespace {
 
-std::optional<subject_type> subject_type_from(const std::string& text) {
+std::string_view column_view(sqlite3_stmt* stmt, int column) {
+  const unsigned char* text = sqlite3_column_text(stmt, column);
+  if (text == nullptr) return {};
+  return {reinterpret_cast<const char*>(text), static_cast<std::size_t>(sqlite3_column_bytes(stmt, column))};
+}
+
+void assign_column_text(std::string& out, sqlite3_stmt* stmt, int column) {
+  const std::string_view text = column_view(stmt, column);
+  out.assign(text.data(), text.size());
+}
+
+std::optional<subject_type> subject_type_from(std::string_view text) {
   for (const auto s : {subject_type::site, subject_type::zone, subject_type::loop, subject_type::dehumidifier}) {
     if (text == subject_type_name(s)) return s;
   }
@@ -75,17 +87,46 @@ class history_reader::impl {
     return store_error{kind, file_.string() + ": " + what + ": " + describe(db_.get(), rc)};
   }
 
-  store_result<std::size_t> for_each_event(const event_filter& f,
-                                           const std::function<void(const stored_event&)>& visit,
+  // A time of store_marks (version 3); a missing row reads as 0 (nothing summarised).
+  int read_mark(const char* name, std::int64_t& out) const {
+    statement stmt;
+    int rc = statement::prepare(db_.get(), "SELECT value_ms FROM store_marks WHERE name = ?1", stmt);
+    if (rc != SQLITE_OK) return rc;
+    stmt.bind_text(1, name);
+    rc = sqlite3_step(stmt.get());
+    out = rc == SQLITE_ROW ? sqlite3_column_int64(stmt.get(), 0) : 0;
+    return rc == SQLITE_ROW || rc == SQLITE_DONE ? SQLITE_OK : rc;
+  }
+
+  // Rows of `select` with `column` in [from_ms, to_ms) (and the zone, when given), by time then zone.
+  std::optional<store_error> scan(const std::string& select, const char* column, const std::optional<std::string>& zone,
+                                  std::int64_t from_ms, std::int64_t to_ms, const char* what,
+                                  const std::function<void(sqlite3_stmt*)>& row) const {
+    where_clause where;
+    if (zone) where.add("zone =", *zone);
+    where.add((std::string(column) + " >=").c_str(), from_ms);
+    where.add((std::string(column) + " <").c_str(), to_ms);
+    const std::string sql = select + where.sql() + " ORDER BY " + column + ", zone";
+    statement stmt;
+    int rc = statement::prepare(db_.get(), sql, stmt);
+    if (rc != SQLITE_OK) return failure(std::string("querying ") + what, rc);
+    where.bind(stmt);
+    while ((rc = sqlite3_step(stmt.get())) == SQLITE_ROW) row(stmt.get());
+    if (rc != SQLITE_DONE) return failure(std::string("reading ") + what, rc);
+    return std::nullopt;
+  }
+  store_result<std::size_t> for_each_event(const event_filter& f, const std::function<void(const stored_event&)>& visit,
                                            bool latest_only = false) const {
     where_clause where;
     if (f.subject_id) where.add("subject_id =", *f.subject_id);
-    if (!f.kinds.empty()) where.add_in("kind", f.kinds);
+    // Many kinds (a report asks for 8): walk the time index, which is already in (ts_ms, id)
+    // order, and test the kind per row; the kind index would need a sort of every row in
+    // temporary storage (the "+" keeps SQLite from choosing it). A few kinds: the kind index.
+    if (!f.kinds.empty()) where.add_in(f.kinds.size() > 3 && !f.subject_id ? "+kind" : "kind", f.kinds);
     if (f.since) where.add("ts_ms >=", to_unix_ms(*f.since));
     if (f.until) where.add("ts_ms <", to_unix_ms(*f.until));
-    const std::string sql =
-        "SELECT id, ts_ms, subject_type, subject_id, kind, json FROM events" + where.sql() +
-        (latest_only ? " ORDER BY ts_ms DESC, id DESC LIMIT 1" : " ORDER BY ts_ms, id");
+    const std::string sql = "SELECT id, ts_ms, subject_type, subject_id, kind, json FROM events" + where.sql() +
+                            (latest_only ? " ORDER BY ts_ms DESC, id DESC LIMIT 1" : " ORDER BY ts_ms, id");
     statement stmt;
     int rc = statement::prepare(db_.get(), sql, stmt);
     if (rc != SQLITE_OK) return failure("querying events", rc);
@@ -96,16 +137,17 @@ class history_reader::impl {
       sqlite3_stmt* s = stmt.get();
       row.id = sqlite3_column_int64(s, 0);
       row.record.ts = from_unix_ms(sqlite3_column_int64(s, 1));
-      const std::string type_text = column_text(s, 2);
+      const std::string_view type_text = column_view(s, 2);
       const auto type = subject_type_from(type_text);
       if (!type) {
         return store_error{store_error_kind::corrupt, file_.string() + ": event id " + std::to_string(row.id) +
-                                                          ": unknown subject_type '" + type_text + "'"};
+                                                          ": unknown subject_type '" + std::string(type_text) + "'"};
       }
       row.record.subject = *type;
-      row.record.subject_id = column_text(s, 3);
-      row.record.kind = column_text(s, 4);
-      row.record.json = column_text(s, 5);
+      // Into the row's strings (reused): no allocation per row once they are large enough.
+      assign_column_text(row.record.subject_id, s, 3);
+      assign_column_text(row.record.kind, s, 4);
+      assign_column_text(row.record.json, s, 5);
       visit(row);
       ++count;
     }
@@ -119,8 +161,8 @@ class history_reader::impl {
     if (f.zone) where.add("zone =", *f.zone);
     if (f.since) where.add("minute_ms >=", to_unix_ms(*f.since));
     if (f.until) where.add("minute_ms <", to_unix_ms(*f.until));
-    const std::string sql =
-        "SELECT " + store_detail::minute_columns(version_) + " FROM zone_samples" + where.sql() + " ORDER BY zone, minute_ms";
+    const std::string sql = "SELECT " + store_detail::minute_columns(version_) + " FROM zone_samples" + where.sql() +
+                            " ORDER BY zone, minute_ms";
     statement stmt;
     int rc = statement::prepare(db_.get(), sql, stmt);
     if (rc != SQLITE_OK) return failure("querying samples", rc);
@@ -139,6 +181,72 @@ class history_reader::impl {
 
   store_result<std::size_t> for_each_period(const sample_filter& f,
                                             const std::function<void(const zone_period&)>& visit) const {
+    if (version_ < 3) return for_each_period_v2(f, visit);
+    // One read transaction: the marks and the rows come from the same committed state (the
+    // service may summarise an hour or delete old minutes meanwhile).
+    sqlite3* db = db_.get();
+    int rc = store_detail::exec(db, "BEGIN");
+    if (rc != SQLITE_OK) return failure("starting a read transaction", rc);
+    struct end_read {
+      sqlite3* db;
+      ~end_read() { store_detail::exec(db, "COMMIT"); }
+    } const end{db};
+    std::int64_t hours_until = 0;
+    std::int64_t minutes_from = 0;
+    rc = read_mark("hours_until", hours_until);
+    if (rc == SQLITE_OK) rc = read_mark("minutes_from", minutes_from);
+    if (rc != SQLITE_OK) return failure("reading store_marks", rc);
+
+    constexpr std::int64_t k_hour = store_detail::k_ms_per_hour;
+    constexpr std::int64_t k_far = std::int64_t{1} << 60;  // beyond any stored time, either way
+    const std::int64_t lo = f.since ? to_unix_ms(*f.since) : -k_far;
+    const std::int64_t hi = f.until ? to_unix_ms(*f.until) : k_far;
+    std::size_t count = 0;
+    zone_period period;
+    zone_sample scratch;
+    const auto hours = [&](std::int64_t from_ms, std::int64_t to_ms) -> std::optional<store_error> {
+      if (from_ms >= to_ms) return std::nullopt;
+      return scan(std::string("SELECT ") + store_detail::k_hour_columns + " FROM zone_hours", "hour_ms", f.zone,
+                  from_ms, to_ms, "hourly roll-ups", [&](sqlite3_stmt* s) {
+                    store_detail::read_hour_row(s, period);
+                    visit(period);
+                    ++count;
+                  });
+    };
+    const auto minutes = [&](std::int64_t from_ms, std::int64_t to_ms) -> std::optional<store_error> {
+      if (from_ms >= to_ms) return std::nullopt;
+      return scan("SELECT " + store_detail::minute_columns(version_) + " FROM zone_samples", "minute_ms", f.zone,
+                  from_ms, to_ms, "samples", [&](sqlite3_stmt* s) {
+                    store_detail::read_minute_row(s, scratch, period);
+                    visit(period);
+                    ++count;
+                  });
+    };
+    // Hours whose minutes are gone (before minutes_from) are read whenever they overlap the range.
+    const std::int64_t first_overlapping_hour = lo - k_hour + 1;
+    std::optional<store_error> e;
+    if (!f.whole_hours) {
+      if (!e) e = hours(first_overlapping_hour, std::min(hi, minutes_from));
+      if (!e) e = minutes(lo, hi);
+    } else {
+      // Whole hours inside [lo, hi) that are summarised come as hours; the edges and the hours
+      // not summarised yet as minutes. In time order: leading edge, hours, the rest.
+      const std::int64_t a = lo + (((k_hour - lo % k_hour) % k_hour + k_hour) % k_hour);  // lo rounded up
+      const std::int64_t b = hi - (((hi % k_hour) + k_hour) % k_hour);                    // hi rounded down
+      const std::int64_t he = std::max(a, std::min(b, hours_until));
+      if (!e) e = hours(first_overlapping_hour, std::min({a, hi, minutes_from}));
+      if (!e) e = minutes(lo, std::min(a, hi));
+      if (!e) e = hours(a, he);
+      if (!e) e = hours(he, std::min(hi, minutes_from));
+      if (!e) e = minutes(he, hi);
+    }
+    if (e) return *e;
+    return count;
+  }
+
+  // Versions 1 and 2: hours (only where the minutes were rolled up) then minutes.
+  store_result<std::size_t> for_each_period_v2(const sample_filter& f,
+                                               const std::function<void(const zone_period&)>& visit) const {
     std::size_t count = 0;
     zone_period period;
     if (version_ >= 2) {
@@ -290,7 +398,8 @@ store_result<std::vector<stored_event>> history_reader::events(const event_filte
 
 store_result<std::optional<stored_event>> history_reader::last_event(const event_filter& filter) const {
   std::optional<stored_event> last;
-  auto r = impl_->for_each_event(filter, [&](const stored_event& e) { last = e; }, true);
+  auto r = impl_->for_each_event(
+      filter, [&](const stored_event& e) { last = e; }, true);
   if (!r.ok()) return r.err();
   return last;
 }

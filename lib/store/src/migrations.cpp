@@ -112,6 +112,23 @@ CREATE TABLE zone_hours (
 ) WITHOUT ROWID;
 )sql";
 
+// Version 3 (issue 12 item 4: a month's report in seconds). Hourly summaries are kept for recent
+// hours too, written by the service as each hour completes, so a long report reads one row per
+// zone and hour instead of sixty. store_marks holds two times (ms):
+// - hours_until: every hour before it has its zone_hours rows (the summary of all its minutes);
+//   minutes from it on are only in zone_samples.
+// - minutes_from: the minutes before it were deleted by the roll-up (only their hours remain).
+// A version 2 file has hours exactly up to the end of its last rolled-up hour, and no minutes
+// before it (but late ones, which the next roll-up merges): both marks start there.
+constexpr std::string_view k_schema_v3 = R"sql(
+CREATE TABLE store_marks (
+  name TEXT PRIMARY KEY,
+  value_ms INTEGER NOT NULL
+) WITHOUT ROWID;
+INSERT INTO store_marks (name, value_ms) SELECT 'hours_until', coalesce(max(hour_ms) + 3600000, 0) FROM zone_hours;
+INSERT INTO store_marks (name, value_ms) SELECT 'minutes_from', coalesce(max(hour_ms) + 3600000, 0) FROM zone_hours;
+)sql";
+
 std::string hex_id(std::int64_t id) {
   char buf[24];
   std::snprintf(buf, sizeof buf, "0x%08llx", static_cast<unsigned long long>(id) & 0xffffffffULL);
@@ -185,7 +202,7 @@ std::optional<store_error> apply_step(const std::filesystem::path& file, sqlite3
 }  // namespace
 
 const std::vector<migration>& schema_migrations() {
-  static const std::vector<migration> k_migrations{{1, k_schema_v1}, {2, k_schema_v2}};
+  static const std::vector<migration> k_migrations{{1, k_schema_v1}, {2, k_schema_v2}, {3, k_schema_v3}};
   return k_migrations;
 }
 

@@ -5,9 +5,11 @@
 #include <condition_variable>
 #include <cstdio>
 #include <exception>
+#include <limits>
 #include <map>
 #include <mutex>
 #include <optional>
+#include <set>
 #include <thread>
 #include <utility>
 #include <vector>
@@ -59,6 +61,15 @@ constexpr const char* k_minutes_to_roll_sql =
     "SELECT minute_ms, zone, min_margin_k, max_dew_point_c, worst_band, air_temp_c, rh_pct, surface_min_c, supply_c, "
     "surface_rh_pct FROM zone_samples WHERE minute_ms >= ?1 AND minute_ms < ?2";
 constexpr const char* k_delete_rolled_sql = "DELETE FROM zone_samples WHERE minute_ms >= ?1 AND minute_ms < ?2";
+constexpr const char* k_newest_sample_sql = "SELECT max(minute_ms) FROM zone_samples";
+constexpr const char* k_next_sample_sql = "SELECT min(minute_ms) FROM zone_samples WHERE minute_ms >= ?1";
+constexpr const char* k_read_mark_sql = "SELECT value_ms FROM store_marks WHERE name = ?1";
+constexpr const char* k_set_mark_sql = "INSERT OR REPLACE INTO store_marks (name, value_ms) VALUES (?1, ?2)";
+constexpr const char* k_mark_hours_until = "hours_until";
+constexpr const char* k_mark_minutes_from = "minutes_from";
+// A batch whose samples complete at most this many hours is summarised in its own commit; a
+// longer gap (a file migrated from version 2, a long outage) is caught up by maintenance passes.
+constexpr std::int64_t k_inline_summary_hours = 24;
 
 std::int64_t floor_to(std::int64_t ms, std::int64_t unit) { return ms - (((ms % unit) + unit) % unit); }
 
@@ -114,12 +125,27 @@ class store_writer::impl {
         {k_minutes_to_roll_sql, &minutes_to_roll_},
         {k_delete_rolled_sql, &delete_rolled_},
         {upsert_hour_sql_.c_str(), &upsert_hour_},
+        {k_newest_sample_sql, &newest_sample_},
+        {k_next_sample_sql, &next_sample_},
+        {k_read_mark_sql, &read_mark_},
+        {k_set_mark_sql, &set_mark_},
     };
     for (const auto& [sql, stmt] : all) {
       const int rc = statement::prepare(db_.get(), sql, *stmt);
       if (rc != SQLITE_OK) {
         return store_error{store_error_kind::sqlite_failure,
                            options_.path.string() + ": preparing statements: " + describe(db_.get(), rc)};
+      }
+    }
+    for (const auto& [name, mark] : {std::pair<const char*, std::int64_t*>{k_mark_hours_until, &hours_until_ms_},
+                                     std::pair<const char*, std::int64_t*>{k_mark_minutes_from, &minutes_from_ms_}}) {
+      read_mark_.bind_text(1, name);
+      const int rc = sqlite3_step(read_mark_.get());
+      *mark = rc == SQLITE_ROW ? sqlite3_column_int64(read_mark_.get(), 0) : 0;
+      sqlite3_reset(read_mark_.get());
+      if (rc != SQLITE_ROW && rc != SQLITE_DONE) {
+        return store_error{store_error_kind::sqlite_failure,
+                           options_.path.string() + ": reading store_marks: " + describe(db_.get(), rc)};
       }
     }
     return std::nullopt;
@@ -345,8 +371,8 @@ class store_writer::impl {
       ++index;
       rc = insert_event_.run(to_unix_ms(e.ts), subject_type_name(e.subject), e.subject_id, e.kind, e.json);
       if (rc != SQLITE_DONE) {
-        fail("inserting event " + std::to_string(index) + " (" + e.kind + " of " + subject_type_name(e.subject) +
-                 " '" + e.subject_id + "' at " + format_iso8601_utc(e.ts) + ")",
+        fail("inserting event " + std::to_string(index) + " (" + e.kind + " of " + subject_type_name(e.subject) + " '" +
+                 e.subject_id + "' at " + format_iso8601_utc(e.ts) + ")",
              rc);
       }
     });
@@ -357,6 +383,48 @@ class store_writer::impl {
       if (rc != SQLITE_DONE) {
         fail("writing the sample of zone '" + z.zone + "' at " + format_iso8601_utc(z.minute_start), rc);
         return failure;
+      }
+    }
+    // Hourly summaries in the same commit: hours this batch completed, and hours already
+    // summarised that got a late sample (summarised again from their minutes).
+    std::int64_t hours_until = hours_until_ms_;
+    if (!batch.samples().empty()) {
+      std::int64_t newest_hour = std::numeric_limits<std::int64_t>::min();
+      std::set<std::int64_t> late_hours;
+      for (const auto& z : batch.samples()) {
+        const std::int64_t hour = floor_to(to_unix_ms(z.minute_start), store_detail::k_ms_per_hour);
+        newest_hour = std::max(newest_hour, hour);
+        if (hour < hours_until_ms_ && hour >= minutes_from_ms_) late_hours.insert(hour);
+      }
+      for (const std::int64_t hour : late_hours) {
+        if (auto f = summarise_hours(hour, hour + store_detail::k_ms_per_hour, nullptr)) {
+          fail("summarising the hour " + format_iso8601_utc(from_unix_ms(hour)) + " again (" + f->first + ")",
+               f->second);
+          return failure;
+        }
+      }
+      if (newest_hour > hours_until) {
+        std::int64_t from = newest_hour;
+        rc = next_sample_at_or_after(hours_until, from);
+        if (rc != SQLITE_OK) {
+          fail("finding the first sample to summarise", rc);
+          return failure;
+        }
+        from = std::min(from, newest_hour);
+        if (newest_hour - from <= k_inline_summary_hours * store_detail::k_ms_per_hour) {
+          if (auto f = summarise_hours(from, newest_hour, nullptr)) {
+            fail(
+                "summarising the hours before " + format_iso8601_utc(from_unix_ms(newest_hour)) + " (" + f->first + ")",
+                f->second);
+            return failure;
+          }
+          hours_until = newest_hour;
+          rc = set_mark_.run(k_mark_hours_until, hours_until);
+          if (rc != SQLITE_DONE) {
+            fail("setting the hours_until mark", rc);
+            return failure;
+          }
+        }
       }
     }
     for (const auto& [zone, z] : batch.zone_snapshots()) {
@@ -377,8 +445,57 @@ class store_writer::impl {
       }
     }
     rc = exec(db, "COMMIT");
-    if (rc != SQLITE_OK) fail("committing", rc);
+    if (rc != SQLITE_OK) {
+      fail("committing", rc);
+    } else {
+      hours_until_ms_ = hours_until;
+    }
     return failure;
+  }
+
+  // SQLITE_OK and the time of the first sample at or after `from_ms` in `out` (unchanged when
+  // there is none), or SQLite's error.
+  int next_sample_at_or_after(std::int64_t from_ms, std::int64_t& out) {
+    next_sample_.bind_int64(1, from_ms);
+    const int rc = sqlite3_step(next_sample_.get());
+    if (rc == SQLITE_ROW && sqlite3_column_type(next_sample_.get(), 0) != SQLITE_NULL) {
+      out = floor_to(sqlite3_column_int64(next_sample_.get(), 0), store_detail::k_ms_per_hour);
+    }
+    sqlite3_reset(next_sample_.get());
+    return rc == SQLITE_ROW || rc == SQLITE_DONE ? SQLITE_OK : rc;
+  }
+
+  // Inside a transaction: (re)writes the zone_hours rows of [from_ms, to_ms) (whole hours) from
+  // their per-minute samples. On failure: what failed and SQLite's code.
+  std::optional<std::pair<std::string, int>> summarise_hours(std::int64_t from_ms, std::int64_t to_ms,
+                                                             std::uint64_t* minutes_read) {
+    std::map<std::pair<std::int64_t, std::string>, zone_period> hours;
+    const statement& s = minutes_to_roll_;
+    s.bind_int64(1, from_ms);
+    s.bind_int64(2, to_ms);
+    int rc = SQLITE_OK;
+    while ((rc = sqlite3_step(s.get())) == SQLITE_ROW) {
+      store_detail::read_minute_row(s.get(), summary_scratch_, summary_minute_);
+      const std::int64_t hour_ms = floor_to(to_unix_ms(summary_minute_.start), store_detail::k_ms_per_hour);
+      auto it = hours.find({hour_ms, summary_minute_.zone});
+      if (it == hours.end()) {
+        it = hours
+                 .emplace(std::make_pair(hour_ms, summary_minute_.zone),
+                          empty_period(summary_minute_.zone, from_unix_ms(hour_ms), 0))
+                 .first;
+      }
+      merge_period(it->second, summary_minute_);
+      if (minutes_read != nullptr) ++*minutes_read;
+    }
+    sqlite3_reset(s.get());
+    if (rc != SQLITE_DONE) return std::make_pair(std::string("reading samples"), rc);
+    for (auto& [key, hour] : hours) {
+      // Minutes missing at the end of the hour break a mould run there.
+      if (hour.length_min < 60) merge_period(hour, empty_period(hour.zone, hour.start + std::chrono::hours{1}, 0));
+      rc = store_detail::write_hour_row(upsert_hour_, hour);
+      if (rc != SQLITE_DONE) return std::make_pair(std::string("writing an hourly row"), rc);
+    }
+    return std::nullopt;
   }
 
   // One maintenance pass; called with the lock held, runs the SQL without it.
@@ -417,17 +534,27 @@ class store_writer::impl {
     lock.lock();
   }
 
-  // Per-minute samples older than keep_minute_samples_days (whole hours) become hourly rows,
-  // a few hours per transaction, until none is left or the pass has used its time budget.
-  // Returns the number of per-minute rows rolled up.
+  // Hourly summaries and the roll-up, a few hours per transaction, until done or the pass has
+  // used its time budget:
+  // 1. late samples before minutes_from (their hour's minutes are gone) are merged into it;
+  // 2. hours not summarised yet (after a migration or an outage, and every hour older than
+  //    keep_minute_samples_days) are summarised;
+  // 3. per-minute samples older than keep_minute_samples_days (whole hours) are deleted: their
+  //    hours keep min, max, mean, minutes in each band and the mould figures.
+  // Returns the number of per-minute rows rolled up (deleted, their hour kept).
   std::uint64_t roll_up(timestamp now, std::vector<std::string>& problems) {
     const auto cutoff = cutoff_ms(now, options_.keep_minute_samples_days);
-    if (!cutoff) return 0;
-    const std::int64_t cutoff_hour = floor_to(*cutoff, store_detail::k_ms_per_hour);
-    const std::int64_t batch_ms = std::max<std::int64_t>(1, options_.rollup_hours_per_batch) * store_detail::k_ms_per_hour;
+    const std::optional<std::int64_t> cutoff_hour =
+        cutoff ? std::optional<std::int64_t>(floor_to(*cutoff, store_detail::k_ms_per_hour)) : std::nullopt;
+    const std::int64_t batch_ms =
+        std::max<std::int64_t>(1, options_.rollup_hours_per_batch) * store_detail::k_ms_per_hour;
     const auto deadline = steady::now() + options_.rollup_pass_budget;
     sqlite3* db = db_.get();
     std::uint64_t rolled = 0;
+    const auto range_text = [](std::int64_t from_ms, std::int64_t to_ms) {
+      return format_iso8601_utc(from_unix_ms(from_ms)) + " … " + format_iso8601_utc(from_unix_ms(to_ms));
+    };
+    // 1. Late samples below minutes_from.
     do {
       int rc = sqlite3_step(oldest_sample_.get());
       const bool have = rc == SQLITE_ROW && sqlite3_column_type(oldest_sample_.get(), 0) != SQLITE_NULL;
@@ -435,20 +562,109 @@ class store_writer::impl {
       sqlite3_reset(oldest_sample_.get());
       if (rc != SQLITE_ROW) {
         problems.push_back("roll-up: finding the oldest sample: " + describe(db, rc) + "; retried on the next pass");
-        break;
+        return rolled;
       }
-      if (!have || oldest >= cutoff_hour) break;
+      if (!have || oldest >= minutes_from_ms_) break;
       const std::int64_t from_ms = floor_to(oldest, store_detail::k_ms_per_hour);
-      const std::int64_t to_ms = std::min(from_ms + batch_ms, cutoff_hour);
+      const std::int64_t to_ms = std::min(from_ms + batch_ms, minutes_from_ms_);
       std::string failed_step;
       const std::uint64_t n = roll_up_range(from_ms, to_ms, failed_step);
       if (!failed_step.empty()) {
-        problems.push_back("roll-up of " + format_iso8601_utc(from_unix_ms(from_ms)) + " … " +
-                           format_iso8601_utc(from_unix_ms(to_ms)) + ": " + failed_step + "; retried on the next pass");
-        break;
+        problems.push_back("roll-up of " + range_text(from_ms, to_ms) + ": " + failed_step +
+                           "; retried on the next pass");
+        return rolled;
       }
       rolled += n;
     } while (steady::now() < deadline);
+    // 2. Summaries up to the newest complete hour (and at least up to the roll-up's cut-off).
+    std::int64_t target = hours_until_ms_;
+    {
+      int rc = sqlite3_step(newest_sample_.get());
+      if (rc == SQLITE_ROW && sqlite3_column_type(newest_sample_.get(), 0) != SQLITE_NULL) {
+        target = floor_to(sqlite3_column_int64(newest_sample_.get(), 0), store_detail::k_ms_per_hour);
+      }
+      sqlite3_reset(newest_sample_.get());
+      if (rc != SQLITE_ROW) {
+        problems.push_back("summaries: finding the newest sample: " + describe(db, rc) + "; retried on the next pass");
+        return rolled;
+      }
+      if (cutoff_hour) target = std::max(target, *cutoff_hour);
+    }
+    while (hours_until_ms_ < target && steady::now() < deadline) {
+      const auto failed = [&](const std::string& what, int rc, std::int64_t to_ms) {
+        problems.push_back("summaries of " + range_text(hours_until_ms_, to_ms) + ": " + what + ": " +
+                           describe(db, rc) + "; retried on the next pass");
+        if (sqlite3_get_autocommit(db) == 0) exec(db, "ROLLBACK");
+      };
+      int rc = exec(db, "BEGIN IMMEDIATE");
+      if (rc != SQLITE_OK) {
+        failed("beginning the transaction", rc, target);
+        return rolled;
+      }
+      std::int64_t from_ms = target;
+      rc = next_sample_at_or_after(hours_until_ms_, from_ms);
+      if (rc != SQLITE_OK) {
+        failed("finding the first sample", rc, target);
+        return rolled;
+      }
+      from_ms = std::max(std::min(from_ms, target), hours_until_ms_);
+      const std::int64_t to_ms = std::min(from_ms + batch_ms, target);
+      if (auto f = summarise_hours(from_ms, to_ms, nullptr)) {
+        failed(f->first, f->second, to_ms);
+        return rolled;
+      }
+      rc = set_mark_.run(k_mark_hours_until, to_ms);
+      if (rc != SQLITE_DONE) {
+        failed("setting the hours_until mark", rc, to_ms);
+        return rolled;
+      }
+      rc = exec(db, "COMMIT");
+      if (rc != SQLITE_OK) {
+        failed("committing", rc, to_ms);
+        return rolled;
+      }
+      hours_until_ms_ = to_ms;
+    }
+    // 3. Old minutes go; their hours stay.
+    if (!cutoff_hour) return rolled;
+    const std::int64_t end_ms = std::min(*cutoff_hour, hours_until_ms_);
+    while (minutes_from_ms_ < end_ms && steady::now() < deadline) {
+      const auto failed = [&](const std::string& what, int rc) {
+        problems.push_back("roll-up of the minutes before " + format_iso8601_utc(from_unix_ms(end_ms)) + ": " + what +
+                           ": " + describe(db, rc) + "; retried on the next pass");
+        if (sqlite3_get_autocommit(db) == 0) exec(db, "ROLLBACK");
+      };
+      int rc = exec(db, "BEGIN IMMEDIATE");
+      if (rc != SQLITE_OK) {
+        failed("beginning the transaction", rc);
+        return rolled;
+      }
+      std::int64_t first_ms = end_ms;
+      rc = next_sample_at_or_after(minutes_from_ms_, first_ms);
+      if (rc != SQLITE_OK) {
+        failed("finding the oldest sample", rc);
+        return rolled;
+      }
+      const std::int64_t to_ms = std::min(std::max(first_ms, minutes_from_ms_) + batch_ms, end_ms);
+      rc = delete_rolled_.run(minutes_from_ms_, to_ms);
+      if (rc != SQLITE_DONE) {
+        failed("deleting rolled-up samples", rc);
+        return rolled;
+      }
+      const auto deleted = static_cast<std::uint64_t>(sqlite3_changes64(db));
+      rc = set_mark_.run(k_mark_minutes_from, to_ms);
+      if (rc != SQLITE_DONE) {
+        failed("setting the minutes_from mark", rc);
+        return rolled;
+      }
+      rc = exec(db, "COMMIT");
+      if (rc != SQLITE_OK) {
+        failed("committing", rc);
+        return rolled;
+      }
+      minutes_from_ms_ = to_ms;
+      rolled += deleted;
+    }
     return rolled;
   }
 
@@ -591,6 +807,15 @@ class store_writer::impl {
   statement delete_rolled_;
   const std::string upsert_hour_sql_ = store_detail::upsert_hour_sql();
   statement upsert_hour_;
+  statement newest_sample_;
+  statement next_sample_;
+  statement read_mark_;
+  statement set_mark_;
+  // store_marks as committed (see store_schema.h); the writer's thread is their only writer.
+  std::int64_t hours_until_ms_ = 0;
+  std::int64_t minutes_from_ms_ = 0;
+  zone_sample summary_scratch_;  // reused per row by summarise_hours
+  zone_period summary_minute_;
   std::thread thread_;
 
   mutable std::mutex mu_;

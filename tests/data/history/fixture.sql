@@ -1,6 +1,6 @@
 -- Invented history for tests/cli/test_history.sh (demo data, no real site).
 -- The DDL must stay identical to what lib/store/src/migrations.cpp leaves in a new file (schema
--- version 2): the test StoreSchema.FixtureOfTheCliTestMatchesTheMigrations compares the two.
+-- version 3): the test StoreSchema.FixtureOfTheCliTestMatchesTheMigrations compares the two.
 PRAGMA auto_vacuum = INCREMENTAL;
 PRAGMA journal_mode = WAL;
 BEGIN IMMEDIATE;
@@ -71,7 +71,12 @@ CREATE TABLE zone_hours (
   mould_longest_min INTEGER NOT NULL,
   PRIMARY KEY (hour_ms, zone)
 ) WITHOUT ROWID;
-PRAGMA user_version = 2;
+CREATE TABLE store_marks (
+  name TEXT PRIMARY KEY,
+  value_ms INTEGER NOT NULL
+) WITHOUT ROWID;
+INSERT INTO store_marks (name, value_ms) VALUES ('hours_until', 0), ('minutes_from', 0);
+PRAGMA user_version = 3;
 
 -- 2026-07-13T23:59:59Z = 1783987199000; 2026-07-14T00:00:00Z = 1783987200000;
 -- 2026-07-14T13:00:00Z = 1784034000000 (computed with GNU date -u -d).

@@ -33,6 +33,9 @@ struct sample_filter {
   std::optional<std::string> zone;
   std::optional<timestamp> since;  // inclusive, on minute_start
   std::optional<timestamp> until;  // exclusive
+  // for_each_period only: an hour that lies whole inside [since, until) may come as its hourly
+  // summary (one row instead of sixty; version 3 files). Off: minutes wherever they are kept.
+  bool whole_hours = false;
 };
 
 class history_reader {
@@ -58,10 +61,11 @@ class history_reader {
                                                           const std::function<void(const zone_sample&)>& visit) const;
   [[nodiscard]] store_result<std::vector<zone_sample>> samples(const sample_filter& filter) const;
 
-  // Hourly roll-ups, then per-minute samples, each ordered by start, then zone: everything a
-  // report draws from, one row at a time (a year is never held in memory). An hour is included
-  // when it overlaps [since, until). Rows that exist only in version 1 files are read as such
-  // (no roll-ups; surface RH computed). The `zone_period` passed to `visit` is reused.
+  // Everything a report draws from, one row at a time (a year is never held in memory), ordered
+  // by start, then zone: hours whose minutes were rolled up (included when they overlap [since,
+  // until)), per-minute samples, and with `whole_hours` the summaries of whole hours in place of
+  // their minutes. Each minute is counted once. Rows that exist only in version 1 files are read
+  // as such (no roll-ups; surface RH computed). The `zone_period` passed to `visit` is reused.
   [[nodiscard]] store_result<std::size_t> for_each_period(const sample_filter& filter,
                                                           const std::function<void(const zone_period&)>& visit) const;
 
@@ -72,7 +76,7 @@ class history_reader {
   };
   [[nodiscard]] store_result<std::optional<time_span>> stored_span() const;
 
-  // PRAGMA user_version of the file (1 or 2).
+  // PRAGMA user_version of the file (1, 2 or 3).
   [[nodiscard]] int schema_version() const;
 
   // Latest snapshot per zone and loop (ordered by their ids), read in one transaction.

@@ -51,16 +51,23 @@
 //   (exclusive), kind. The service's restore (load_restored_state) reads the same way.
 // - Retention cut-offs: keep_*_days <= 0 keeps rows forever. keep_samples_days applies to the
 //   per-minute samples and to the hourly roll-ups alike.
-// - Roll-up (schema v2): each maintenance pass first turns per-minute samples older than
-//   keep_minute_samples_days (whole hours) into zone_hours rows, rollup_hours_per_batch hours of
-//   all zones per transaction, until none is left or rollup_pass_budget is spent. One transaction
-//   reads the minutes, merges them per zone and hour (see zone_period.h: lowest margin and its
-//   minute, highest dew point, coldest surface, means, minutes per band, mould minutes and
-//   runs), writes the hours and deletes the minutes, so a crash leaves either form, never both
-//   or neither. A late sample for an hour already rolled up is merged into it.
-// - Layout (schema v2): zone_samples and zone_hours are WITHOUT ROWID tables keyed by time, then
-//   zone: inserts append, retention and roll-up take ranges from the front, and a report reads
-//   one range in one pass. Readers accept version 1 files as they are.
+// - Hourly summaries (schema v3): the commit that writes the first sample of a new hour also
+//   writes the zone_hours rows of the hours it completed (up to 24 hours in one commit; a longer
+//   gap, as after a migration from v2, is caught up by maintenance passes) and moves the mark
+//   store_marks.hours_until. A late sample for an hour already summarised makes the same commit
+//   summarise that hour again from its minutes, so nothing is counted twice. Each summary
+//   merges the minutes per zone and hour (see zone_period.h: lowest margin and its minute,
+//   highest dew point, coldest surface, means, minutes per band, mould minutes and runs).
+//   Readers asked for whole hours (sample_filter::whole_hours, a report with buckets of an hour
+//   or more) read the summaries before hours_until and the minutes after it.
+// - Roll-up: each maintenance pass then deletes per-minute samples older than
+//   keep_minute_samples_days (whole hours, already summarised), rollup_hours_per_batch hours of
+//   all zones per transaction, until none is left or rollup_pass_budget is spent, and moves
+//   store_marks.minutes_from; only the hours remain. A late sample for an hour whose minutes are
+//   gone is merged into it by the next pass.
+// - Layout (schema v2 on): zone_samples and zone_hours are WITHOUT ROWID tables keyed by time,
+//   then zone: inserts append, retention and roll-up take ranges from the front, and a report
+//   reads one range in one pass. Readers accept version 1 and 2 files as they are.
 // - sqlite3.h stays out of these headers (pimpl); callers need only the core's types.
 #include "dewmargin/history_format.h"
 #include "dewmargin/history_reader.h"

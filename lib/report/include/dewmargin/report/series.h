@@ -12,9 +12,14 @@ namespace dewmargin::report {
 struct series_layout {
   timestamp since;
   timestamp until;
+  // Where the first bucket starts: `since`, rounded down to the hour for buckets of an hour or
+  // more, so that an hour's summary falls whole into one bucket (the chart clips at `since`).
+  timestamp origin;
   std::chrono::minutes bucket{1};
   std::size_t count = 0;
-  [[nodiscard]] timestamp start_of(std::size_t i) const { return since + bucket * static_cast<std::int64_t>(i); }
+  [[nodiscard]] timestamp start_of(std::size_t i) const { return origin + bucket * static_cast<std::int64_t>(i); }
+  // Buckets of whole hours: the report may read hourly summaries instead of minutes.
+  [[nodiscard]] bool whole_hours() const { return bucket.count() % 60 == 0; }
   // The bucket a time falls in, clamped into [0, count).
   [[nodiscard]] std::size_t index_of(timestamp t) const;
 };
