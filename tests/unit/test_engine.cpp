@@ -1,10 +1,9 @@
 // The decision core end to end, on simulated time: readings in, published objects out.
-#include "dewmargin/engine.h"
-
 #include <gtest/gtest.h>
 
 #include <set>
 
+#include "dewmargin/engine.h"
 #include "dewmargin/psychro.h"
 #include "engine_fixture.h"
 
@@ -141,8 +140,8 @@ TEST(Engine, NoAlarmWhileWaitingForFirstReadingsThenMissingRaisesIt) {
   // Exactly the measurements went missing, not the switch and the contact.
   std::set<std::string> missing;
   for (const auto& e : inputs) missing.insert(e["topic"].get<std::string>());
-  EXPECT_EQ(missing, (std::set<std::string>{"plant/a/supply", "plant/a/return", "plant/a/flow", "b/z1/temp",
-                                            "b/z1/rh", "b/z1/surface", "b/z2/temp", "b/z2/rh"}));
+  EXPECT_EQ(missing, (std::set<std::string>{"plant/a/supply", "plant/a/return", "plant/a/flow", "b/z1/temp", "b/z1/rh",
+                                            "b/z1/surface", "b/z2/temp", "b/z2/rh"}));
   const auto z1 = d.last_json("dm/zone/z1/state");
   EXPECT_EQ(z1["band"], "unknown");
   EXPECT_EQ(z1["alarm"]["active"], true);
@@ -512,6 +511,19 @@ TEST(Engine, AdoptKeepsReadingsAlarmsAndSetpointsAcrossReload) {
   for (const auto& m : out.messages) EXPECT_NE(m.topic, "dm/events") << m.payload;
 }
 
+TEST(Engine, AReloadThatMovesTheSetpointTopicTellsTheNewTopicAtOnce) {
+  engine_driver d(small_site());
+  d.readings(24, 50, 17, 16);
+  d.advance(1);
+  const std::string told = d.last_payload("plant/a/sp");
+  ASSERT_FALSE(told.empty());
+  site_config moved = small_site();
+  moved.loops[0].setpoint.topic = "plant/a/setpoint";  // a typo fixed
+  d.clear_log();
+  d.reload(moved);
+  EXPECT_EQ(d.last_payload("plant/a/setpoint"), told) << "the controller on the new topic has been told nothing yet";
+}
+
 TEST(Engine, AdoptKeepsValveAcknowledgementAndShelving) {
   engine_driver d(small_site());
   d.readings(24, 50, 17, 16);
@@ -565,7 +577,7 @@ TEST(Engine, AdoptKeepsTheValvesReopenTimer) {
 TEST(Engine, AdoptKeepsTheCurrentMinutesSample) {
   engine_driver d(small_site(), 1'800'000'000 - 1'800'000'000 % 60);
   d.readings(24, 50, 17, 16);
-  d.advance(60);  // the first minute closes
+  d.advance(60);                  // the first minute closes
   d.at(5, "b/z1/surface", "15");  // the minute's lowest margin, before the reload
   d.at(5, "b/z1/surface", "16");
   d.reload(small_site());
@@ -665,6 +677,22 @@ TEST(Engine, IgnoresRetainedMeasurementsAndCommandsButTakesRetainedSwitches) {
   }
   EXPECT_EQ(valve_payload, "closed");
   EXPECT_EQ(fresh.core().counters().retained_ignored, 0u);
+}
+
+TEST(Engine, ARetainedSwitchStateRedeliveredAfterAReconnectNeverOverridesALiveOne) {
+  // The broker re-sends retained messages at each resubscription (MQTT 3.1.1, 3.8.4): an old
+  // retained "closed" must not reopen a valve closed by a live "open" heard since start.
+  engine_driver d(small_site());
+  d.readings(24, 50, 17, 16);
+  ASSERT_EQ(d.last_payload("b/z1/valve"), "open");
+  d.send("b/z1/window", "open");
+  ASSERT_EQ(d.last_payload("b/z1/valve"), "closed");
+  engine_output out;
+  d.core().on_message("b/z1/window", "closed", d.now(), out, true);
+  for (const auto& m : out.messages) EXPECT_NE(m.topic, "b/z1/valve") << m.payload;
+  EXPECT_EQ(d.core().counters().retained_ignored, 1u);
+  d.advance(3600);  // long past the reopen delay: still held closed by the live "open"
+  EXPECT_EQ(d.last_payload("b/z1/valve"), "closed");
 }
 
 TEST(Engine, SubscribesToEveryInputAndCommands) {

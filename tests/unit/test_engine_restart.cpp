@@ -146,6 +146,16 @@ TEST(EngineRestart, ShelvingIsKeptWhileTheZoneWaits) {
   EXPECT_TRUE(d.events("band").empty());
 }
 
+// A stored end of shelving beyond what a command can ask (an edited or damaged row) is cut to
+// the longest shelving (1440 minutes from the restart), never kept for good.
+TEST(EngineRestart, ARestoredShelvingIsNeverLongerThanTheLongestACommandCanAsk) {
+  const timestamp year_9999 = from_unix_ms(253'402'300'799'000);
+  engine_driver d(small_site(), k_start_s, restored_zone("z1", "condensing", true, year_9999));
+  d.at(1, "b/z1/temp", "24");
+  const auto until = d.last_json("dm/zone/z1/state")["alarm"]["shelved_until"];
+  EXPECT_EQ(until, format_iso8601_utc(from_unix_ms((k_start_s + 1440 * 60) * 1000)));
+}
+
 // The surface never reports: after stale_after_s it is missing, and the zone is unknown
 // (a fault) rather than cleared by the supply's safe margin; the fault re-arms the alarm.
 TEST(EngineRestart, RestoredAlarmIsNotClearedByTheSupplyWhenTheSurfaceGoesMissing) {

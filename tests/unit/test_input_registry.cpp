@@ -84,6 +84,45 @@ TEST(InputRegistry, NeverReportedIsMissingStaleAfterSecondsAfterStart) {
   EXPECT_FALSE(f.reg[f.temp_id].awaited(180));
 }
 
+TEST(InputRegistry, ANeverStaleMeasurementThatNeverReportsIsMissingOnceItsZoneStopsWaiting) {
+  // stale_after_s: 0 means "never stale once it has reported", not "may stay silent for ever":
+  // a zone must not stay unknown with no alarm because one of its sensors never spoke.
+  registry_fixture f;
+  input_config quiet = topic("b/quiet");
+  quiet.stale_after_s = 0.0;
+  const std::size_t id = f.reg.add(input_kind::humidity, quiet, {false, 0}, 180.0);
+  EXPECT_EQ(f.reg[id].grace_s, 180.0);
+  for (const auto& c : f.staleness(179.9)) EXPECT_NE(c.slot, id);
+  bool missing = false;
+  for (const auto& c : f.staleness(180)) {
+    if (c.slot != id) continue;
+    missing = true;
+    EXPECT_EQ(c.to, input_status::missing);
+    EXPECT_EQ(c.reason, "no reading in the 180 s since start");
+  }
+  EXPECT_TRUE(missing);
+  EXPECT_TRUE(f.reg[id].faulted(at_s(181)));
+  // Once it reports it is never stale again.
+  (void)f.apply(id, "55", 200);
+  EXPECT_EQ(f.reg[id].status, input_status::ok);
+  for (const auto& c : f.staleness(30 * 86400.0)) EXPECT_NE(c.slot, id);
+  // A zone whose own stale_after_s is 0 still waits only the default 180 s.
+  const std::size_t zero_zone = f.reg.add(input_kind::air_temp, topic("b/other"), {false, 1}, 0.0);
+  EXPECT_EQ(f.reg[zero_zone].grace_s, 180.0);
+}
+
+TEST(InputRegistry, APayloadOverTheLimitIsABadInputNotRead) {
+  registry_fixture f;
+  (void)f.apply(f.temp_id, "24", 1);
+  const std::string huge = "2" + std::string(k_max_input_payload_bytes, '0');
+  const auto changes = f.apply(f.temp_id, huge.c_str(), 2);
+  ASSERT_EQ(changes.size(), 1u);
+  EXPECT_EQ(changes[0].to, input_status::bad);
+  ASSERT_TRUE(changes[0].fault);
+  EXPECT_EQ(*changes[0].fault, input_fault::too_large);
+  EXPECT_EQ(f.reg.fresh_value(f.temp_id, at_s(2)), 24.0) << "the last good value stays";
+}
+
 TEST(InputRegistry, SwitchesAndContactsNeverGoStaleOrMissing) {
   registry_fixture f;
   // Never reported: not missing, whatever the time.

@@ -78,9 +78,12 @@ void engine::state::route(const std::string& topic, std::string_view payload, ti
     on_reading(*ids, payload, reading_ts, now, out);
     return;
   }
+  // A retained switch state is the device's last word only until the service has heard from the
+  // input: the broker re-sends retained messages at every resubscription (each reconnect), and an
+  // old retained "dry" must never override a live "wet" heard since.
   std::vector<std::size_t> switches;
   for (std::size_t id : *ids) {
-    if (is_switch_kind(inputs[id].kind)) switches.push_back(id);
+    if (is_switch_kind(inputs[id].kind) && !inputs[id].last_message) switches.push_back(id);
   }
   if (switches.size() != ids->size()) ++counters.retained_ignored;
   if (!switches.empty()) on_reading(switches, payload, reading_ts, now, out);
@@ -102,7 +105,7 @@ engine::~engine() = default;
 void engine::begin(timestamp now, const restored_state& restored, engine_output& out) {
   s_->start = now;
   s_->last_now = now;
-  s_->restore(restored, true);
+  s_->restore(restored, true, now);
   s_->publish_all(now, out);
 }
 

@@ -146,7 +146,7 @@ struct engine::state {
   // engine_state_transfer.cpp
   static zone_snapshot snapshot_of(const zone_rt& z, timestamp now);
   void emit_zone_snapshot(engine_output& out, const zone_rt& z, timestamp now) const;
-  void restore(const restored_state& r, bool from_storage);
+  void restore(const restored_state& r, bool from_storage, timestamp now);
   void restore_setpoint(const std::string& loop, double setpoint_c);
   void adopt(const state& previous);
   void publish_all(timestamp now, engine_output& out);

@@ -61,7 +61,7 @@ void engine::state::emit_zone_snapshot(engine_output& out, const zone_rt& z, tim
 }
 
 // A restart: the alarms are held until the zones' own inputs report (zone_rt).
-void engine::state::restore(const restored_state& r, bool from_storage) {
+void engine::state::restore(const restored_state& r, bool from_storage, timestamp now) {
   for (const auto& zs : r.zones) {
     const auto it = zone_index.find(zs.zone);
     if (it == zone_index.end()) continue;  // zone removed from the config since
@@ -70,6 +70,10 @@ void engine::state::restore(const restored_state& r, bool from_storage) {
     a.active = zs.alarm_active;
     a.acknowledged = zs.acknowledged;
     a.shelved_until = zs.shelved_until;
+    // A stored end beyond what a command can ask (an edited or damaged row) is cut to the
+    // longest shelving, so that no file can hide an alarm for good.
+    const timestamp longest = now + std::chrono::minutes(k_max_shelve_minutes);
+    if (a.shelved_until && *a.shelved_until > longest) a.shelved_until = longest;
     z.condition.alarm.restore(a, restored_alarm_band(zs));
     z.condition.alarm_condition = a.active;
     z.hold_restored_alarm = from_storage && a.active;
@@ -100,15 +104,20 @@ void engine::state::adopt(const state& p) {
     const auto it = p.zone_index.find(z.cfg->id);
     if (it != p.zone_index.end()) carry_over(z, p.zones[it->second]);
   }
-  // What the plant was last told stays the reference for the republish rules.
+  // What the plant was last told stays the reference for the republish rules, as long as it
+  // was told on the same topic: a new topic has been told nothing yet.
   for (loop_rt& l : loops) {
     for (const loop_rt& old : p.loops) {
-      if (old.cfg->id == l.cfg->id) l.published_bare = old.published_bare;
+      if (old.cfg->id == l.cfg->id && old.cfg->setpoint.topic == l.cfg->setpoint.topic) {
+        l.published_bare = old.published_bare;
+      }
     }
   }
   for (dehumidifier_rt& d : dehumidifiers) {
     for (const dehumidifier_rt& old : p.dehumidifiers) {
-      if (old.cfg->id == d.cfg->id) d.published_request_c = old.published_request_c;
+      if (old.cfg->id == d.cfg->id && old.cfg->dew_point_request.topic == d.cfg->dew_point_request.topic) {
+        d.published_request_c = old.published_request_c;
+      }
     }
   }
 }

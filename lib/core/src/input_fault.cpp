@@ -29,6 +29,8 @@ const char* input_fault_name(input_fault f) {
       return "out_of_range";
     case input_fault::out_of_order:
       return "out_of_order";
+    case input_fault::too_large:
+      return "too_large";
     case input_fault::undecodable:
       return "undecodable";
   }

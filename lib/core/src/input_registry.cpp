@@ -23,7 +23,12 @@ struct decoded {
 decoded decode(const input_slot& s, std::string_view payload, timestamp reading_ts,
                const plausibility_config& plausibility) {
   decoded d;
-  if (s.last_reading && reading_ts < *s.last_reading) {
+  if (payload.size() > k_max_input_payload_bytes) {
+    d.fault = input_fault::too_large;
+    d.problem = make_error(error_code::out_of_range, "payload too large (" + std::to_string(payload.size()) +
+                                                         " bytes, at most " +
+                                                         std::to_string(k_max_input_payload_bytes) + "), not read");
+  } else if (s.last_reading && reading_ts < *s.last_reading) {
     d.fault = input_fault::out_of_order;
     d.problem =
         make_error(error_code::out_of_range, "reading older than the last one (" + format_iso8601_utc(reading_ts) +
@@ -80,8 +85,10 @@ std::size_t input_registry::add(input_kind kind, const input_config& cfg, input_
   s.cfg = &cfg;
   s.owner = owner;
   s.stale_after_s = cfg.stale_after_s.value_or(is_switch_kind(kind) ? 0.0 : default_stale_s);
-  // A never-stale input still cannot keep its zone waiting for ever.
-  s.grace_s = s.stale_after_s > 0.0 ? s.stale_after_s : default_stale_s;
+  // A never-stale input still cannot keep its zone waiting for ever (nor can a zone whose
+  // stale_after_s is 0: then the default limit applies to the wait).
+  s.grace_s = s.stale_after_s > 0.0 ? s.stale_after_s
+                                    : (default_stale_s > 0.0 ? default_stale_s : band_thresholds{}.stale_after_s);
   slots_.push_back(std::move(s));
   const std::size_t id = slots_.size() - 1;
   by_topic_[cfg.topic].push_back(id);
@@ -143,6 +150,16 @@ void input_registry::check_staleness(timestamp start, timestamp now, std::vector
   const double since_start_s = seconds_between(start, now);
   for (std::size_t id = 0; id < slots_.size(); ++id) {
     input_slot& s = slots_[id];
+    // A never-stale measurement that has not reported once in its zone's wait after start is
+    // missing: otherwise a zone could stay unknown for ever with no alarm.
+    const bool never_stale_measurement = s.stale_after_s <= 0.0 && !is_switch_kind(s.kind);
+    if (never_stale_measurement && s.status == input_status::awaiting && since_start_s >= s.grace_s) {
+      changes.push_back({id, s.status, input_status::missing,
+                         "no reading in the " + format_seconds(s.grace_s) + " since start", std::nullopt,
+                         std::nullopt});
+      s.status = input_status::missing;
+      continue;
+    }
     if (s.stale_after_s <= 0.0 || s.fresh(now)) continue;
     // An input that keeps sending bad payloads is bad, not silent.
     const bool still_talking = s.last_message && seconds_between(*s.last_message, now) < s.stale_after_s;

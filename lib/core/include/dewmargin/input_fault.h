@@ -18,6 +18,7 @@ enum class input_fault {
   unknown_word,   // a switch payload that is neither an active nor a known inactive word
   out_of_range,   // outside the plausible range of its kind
   out_of_order,   // older than the input's last reading
+  too_large,      // over k_max_input_payload_bytes, not read
   undecodable,    // any other decoding failure
 };
 

@@ -2,7 +2,9 @@
 // Rule: an input is stale when it has had no good reading for its stale_after_s (the zone's
 // or loop's, or its own; 0 never). Switches and contacts report on change only, so they
 // are never stale unless their own stale_after_s is set. An input that has never reported
-// is *awaiting*, and *missing* once stale_after_s has passed since start. An input that
+// is *awaiting*, and *missing* once stale_after_s has passed since start (a measurement that is
+// never stale: once its zone's wait after start is over; switches and contacts, which may
+// report only on change, stay awaiting). An input that
 // keeps sending bad payloads is *bad*, not stale: it turns stale only when it has also
 // been silent for stale_after_s. The last good value stays in use until the input is stale.
 //
@@ -22,6 +24,10 @@
 #include "dewmargin/timestamp.h"
 
 namespace dewmargin {
+
+// A reading payload longer than this is not read: a bad input (fault `too_large`). Sensors send
+// a number or a small JSON object; a megabyte on a sensor topic is a fault, not a reading.
+inline constexpr std::size_t k_max_input_payload_bytes = 64 * 1024;
 
 enum class input_status { awaiting, ok, bad, stale, missing };
 const char* input_status_name(input_status s);
