@@ -9,7 +9,9 @@
 
 #include "dewmargin/config_loader.h"
 #include "dewmargin/engine.h"
+#include "dewmargin/forward_clock.h"
 #include "dewmargin/http_server.h"
+#include "dewmargin/input_registry.h"
 #include "dewmargin/json_dump.h"
 #include "dewmargin/live_snapshot.h"
 #include "dewmargin/mqtt_link.h"
@@ -113,7 +115,7 @@ class service {
     event_time_ = cfg.clock.source == clock_source::readings;
     // In event-time mode the core starts at the first reading's time; until then nothing
     // is evaluated (and the first messages wait, see handle()).
-    if (!event_time_) start_core(wall_now());
+    if (!event_time_) start_core(clock_now());
     link_->start();
     notifier_.status("connecting to " + cfg.broker.uri);
 
@@ -304,7 +306,7 @@ class service {
       const auto after = std::chrono::steady_clock::now();
       if (after >= next_tick) {
         if (!event_time_) {
-          core_->tick(wall_now(), batch_);
+          core_->tick(clock_now(), batch_);
           dispatch();
         }
         next_tick += k_tick;
@@ -349,10 +351,12 @@ class service {
   // Each message's outputs go out before the next message is taken (alarm latency).
   void handle(const inbound_message& msg) {
     if (!event_time_) {
-      contain(msg, wall_now());
+      contain(msg, clock_now());
       return;
     }
-    const std::optional<timestamp> ts = reading_time(msg.payload);
+    // Only a reading moves event time: a command, or a message on a topic no input reads,
+    // cannot set the clock (a stray "ts" in 2099 would make every input stale until a restart).
+    const std::optional<timestamp> ts = core_->reads(msg.topic) ? reading_time(msg.payload) : std::nullopt;
     if (!started_) {
       if (!ts) {
         // Commands before the first reading: keep a bounded number for when time starts.
@@ -378,7 +382,7 @@ class service {
 
   // Event time: the ISO 8601 text at clock.field of a JSON payload.
   std::optional<timestamp> reading_time(const std::string& payload) const {
-    if (payload.empty() || payload.front() != '{') return std::nullopt;
+    if (payload.empty() || payload.front() != '{' || payload.size() > k_max_input_payload_bytes) return std::nullopt;
     const auto doc = nlohmann::json::parse(payload, nullptr, false);
     if (doc.is_discarded() || !doc.is_object()) return std::nullopt;
     try {
@@ -424,7 +428,23 @@ class service {
     }
   }
 
-  timestamp service_now() const { return event_time_ ? event_now_ : wall_now(); }
+  timestamp service_now() { return event_time_ ? event_now_ : clock_now(); }
+
+  // Wall time that never goes backwards (forward_clock.h); a step back is logged once.
+  timestamp clock_now() {
+    const timestamp t = clock_.now(wall_now(), std::chrono::steady_clock::now());
+    const bool behind = clock_.ahead() > std::chrono::seconds(1);
+    if (behind && !clock_stepped_back_) {
+      spdlog::warn(
+          "the system clock stepped back by {:.1f} s; the service's time keeps running forward (at 90 % "
+          "speed until the system clock catches up), so no reading is refused as out of order",
+          std::chrono::duration<double>(clock_.ahead()).count());
+    } else if (!behind && clock_stepped_back_) {
+      spdlog::info("the system clock has caught up with the service's time");
+    }
+    clock_stepped_back_ = behind;
+    return t;
+  }
 
   void reload() {
     notifier_.reloading();
@@ -516,6 +536,8 @@ class service {
   std::unique_ptr<live_snapshot> live_;
   std::unique_ptr<http_server> http_;
   std::chrono::steady_clock::time_point next_http_attempt_{};
+  forward_clock clock_;
+  bool clock_stepped_back_ = false;
   std::uint64_t retired_bad_inputs_ = 0;
   std::uint64_t retired_rejected_ = 0;
 };

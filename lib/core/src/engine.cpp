@@ -125,6 +125,8 @@ void engine::tick(timestamp now, engine_output& out) { s_->tick(s_->advance(now)
 
 void engine::flush(timestamp now, engine_output& out) { s_->flush(s_->advance(now), out); }
 
+bool engine::reads(const std::string& topic) const { return s_->inputs.slots_for(topic) != nullptr; }
+
 std::vector<std::string> engine::subscriptions() const {
   std::vector<std::string> topics = s_->inputs.topics();
   topics.push_back(s_->cmd_prefix + "#");

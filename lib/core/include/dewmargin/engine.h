@@ -66,6 +66,8 @@ class engine {
 
   // Exact topics of every input, plus <prefix>/cmd/#.
   [[nodiscard]] std::vector<std::string> subscriptions() const;
+  // True when some input reads `topic` (a reading, not a command).
+  [[nodiscard]] bool reads(const std::string& topic) const;
   [[nodiscard]] const site_config& config() const;
   [[nodiscard]] engine_counters counters() const;
   [[nodiscard]] restored_state snapshot() const;
