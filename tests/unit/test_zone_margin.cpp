@@ -10,9 +10,11 @@ namespace {
 
 double dp(double t, double rh) { return psychro::dew_point_c(t, rh).value(); }
 
-margin_input good(double v) { return {v, false, "ok"}; }
-margin_input faulted(const char* status) { return {std::nullopt, true, status}; }
-margin_input awaiting() { return {std::nullopt, false, "awaiting"}; }
+margin_input good(double v) { return {v, v, false, "ok"}; }
+margin_input faulted(const char* status) { return {std::nullopt, std::nullopt, true, status}; }
+// Faulted after it had reported `last`: its last good value is kept, but it is not fresh.
+margin_input faulted_after(double last, const char* status) { return {std::nullopt, last, true, status}; }
+margin_input awaiting() { return {std::nullopt, std::nullopt, false, "awaiting"}; }
 
 zone_readings all_good() {
   zone_readings r;
@@ -36,6 +38,36 @@ TEST(ZoneMargin, ColdestSurfaceMinusHighestDewPoint) {
   EXPECT_STREQ(m.margin_source, "surface");
   EXPECT_FALSE(m.unknown_is_fault);
   EXPECT_EQ(m.unknown_reason, "");
+}
+
+// A failed sensor never improves the zone (safety first): its loss must not turn an alarm
+// into safe, nor lower the dew point that drives the loop's setpoint.
+TEST(ZoneMargin, LosingTheMoreHumidSensorKeepsItsLastValueWhileAnotherReports) {
+  zone_readings r = all_good();
+  r.humidity_pct = {good(50), faulted_after(65, "stale")};
+  const zone_margin m = compute_zone_margin(r);
+  ASSERT_TRUE(m.dew_point_c);
+  EXPECT_DOUBLE_EQ(*m.dew_point_c, dp(24, 65));
+  EXPECT_EQ(m.rh_pct, 65.0);
+  // All of them failed: no dew point at all (unknown, a fault), never one from old values.
+  r.humidity_pct = {faulted_after(50, "stale"), faulted_after(65, "stale")};
+  const zone_margin none = compute_zone_margin(r);
+  EXPECT_FALSE(none.dew_point_c);
+  EXPECT_TRUE(none.unknown_is_fault);
+}
+
+TEST(ZoneMargin, LosingOneOfSeveralSurfacesBoundsTheReferenceByTheSupply) {
+  zone_readings r = all_good();
+  r.surfaces_c = {faulted_after(15.5, "stale"), good(19)};  // the colder one went silent
+  r.supply_c = good(16);
+  const zone_margin m = compute_zone_margin(r);
+  ASSERT_TRUE(m.margin_k);
+  EXPECT_DOUBLE_EQ(*m.margin_k, 16 - dp(24, 50)) << "not 19 - dew point";
+  EXPECT_STREQ(m.margin_source, "supply");
+  EXPECT_EQ(m.surface_min_c, 19.0);
+  // With every surface reporting the supply does not count.
+  r.surfaces_c = {good(17.5), good(19)};
+  EXPECT_DOUBLE_EQ(*compute_zone_margin(r).margin_k, 17.5 - dp(24, 50));
 }
 
 TEST(ZoneMargin, SupplyStandsInForAZoneWithoutAFreshSurface) {

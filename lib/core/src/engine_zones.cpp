@@ -8,7 +8,7 @@ namespace dewmargin {
 namespace {
 
 margin_input margin_input_of(const input_slot& s, timestamp now) {
-  return {s.fresh_value(now), s.faulted(now), input_status_name(s.status)};
+  return {s.fresh_value(now), s.value, s.faulted(now), input_status_name(s.status)};
 }
 
 }  // namespace

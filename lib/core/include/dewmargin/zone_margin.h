@@ -3,6 +3,10 @@
 //   dew point  = the highest of the dew points from the air temperature and each humidity
 //   reference  = the coldest fresh surface; without one, the loop's supply temperature
 //                (unless the supply fallback is barred: a restored alarm, start-up grace)
+// A failed sensor never improves the result: while one of several humidity inputs is faulted
+// its last good value still counts for the highest dew point, and while one of several
+// surfaces is faulted the supply temperature (colder than any chilled surface) bounds the
+// reference. With all of them faulted there is no dew point (or surface) at all.
 //   margin_k   = reference − dew point, empty while the zone waits for its first readings
 // and, when there is no margin, whether that is a fault or only the wait, and why.
 #include <optional>
@@ -15,6 +19,7 @@ namespace dewmargin {
 // fault (stale, missing, bad) rather than the wait for a first reading.
 struct margin_input {
   std::optional<double> value;
+  std::optional<double> last_value;  // the last good value, fresh or not
   bool faulted = false;
   const char* status = "ok";  // input_status_name, for the reason text
 };
