@@ -464,6 +464,18 @@ class service {
       notifier_.ready("reload rejected; previous config in force");
       return;
     }
+    if (const auto added = new_input_topics(core_->config(), *loaded.config); !added.empty()) {
+      std::string topics;
+      for (const auto& t : added) topics += (topics.empty() ? "'" : ", '") + text_excerpt(t, 120) + "'";
+      log_->error("reload rejected: new input topics need a restart (they are subscribed at start): {}", topics);
+      core_->service_event(now, "running", "running",
+                           "reload rejected (new input topics need a restart: " + text_excerpt(topics, k_report_bytes) +
+                               "); the previous config stays in force",
+                           batch_);
+      dispatch();
+      notifier_.ready("reload rejected; previous config in force");
+      return;
+    }
     for (const auto& setting : restart_needed(core_->config(), *loaded.config)) {
       log_->warn("reload: {} changed; it takes effect at the next restart", setting);
     }

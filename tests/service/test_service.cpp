@@ -17,7 +17,8 @@ class Service : public ::testing::Test {
   void SetUp() override {
     broker_.start();
     service_ = std::make_unique<service_under_test>(broker_.uri(), dir_.path());
-    watcher_ = std::make_unique<mqtt_test_client>(broker_.uri(), std::vector<std::string>{"dm/#", "plant/#", "r/a/valve"});
+    watcher_ =
+        std::make_unique<mqtt_test_client>(broker_.uri(), std::vector<std::string>{"dm/#", "plant/#", "r/a/valve"});
   }
   void TearDown() override {
     if (HasFailure()) std::cerr << "---- dewmargind log\n" << service_->log_text() << "----\n";
@@ -27,9 +28,8 @@ class Service : public ::testing::Test {
   void start_service() {
     const std::size_t from = watcher_->size();
     service_->start();
-    ASSERT_TRUE(watcher_->wait_for("dm/status",
-                                   [](const received_message& m) { return as_json(m).value("state", "") == "online"; },
-                                   10s, from))
+    ASSERT_TRUE(watcher_->wait_for(
+        "dm/status", [](const received_message& m) { return as_json(m).value("state", "") == "online"; }, 10s, from))
         << "no online status";
   }
 
@@ -65,16 +65,20 @@ TEST_F(Service, PublishesRetainedZoneAndLoopStateAndTheBareSetpoint) {
   EXPECT_NEAR((*zone)["margin_k"].get<double>(), 17.5 - 12.93, 0.01);
   EXPECT_EQ((*zone)["site"], "service-test");
   ASSERT_TRUE(watcher_->wait_for_payload("r/a/valve", "open", 10s));
-  ASSERT_TRUE(watcher_->wait_for("plant/l1/sp", [](const received_message&) { return true; }, 10s));
-  ASSERT_TRUE(watcher_->wait_for("dm/loop/loop-1/state",
-                                 [](const received_message& m) { return as_json(m)["setpoint_c"].is_number(); }, 10s));
+  ASSERT_TRUE(watcher_->wait_for(
+      "plant/l1/sp", [](const received_message&) { return true; }, 10s));
+  ASSERT_TRUE(watcher_->wait_for(
+      "dm/loop/loop-1/state", [](const received_message& m) { return as_json(m)["setpoint_c"].is_number(); }, 10s));
   // A client that connects later gets the retained states.
   mqtt_test_client late(broker_.uri(), {"dm/zone/room-a/state", "dm/loop/loop-1/state", "plant/l1/sp"});
-  const auto retained = late.wait_for("dm/zone/room-a/state", [](const received_message& m) { return m.retained; }, 10s);
+  const auto retained = late.wait_for(
+      "dm/zone/room-a/state", [](const received_message& m) { return m.retained; }, 10s);
   ASSERT_TRUE(retained);
   EXPECT_EQ(as_json(*retained)["band"], "safe");
-  EXPECT_TRUE(late.wait_for("plant/l1/sp", [](const received_message& m) { return m.retained; }, 10s));
-  EXPECT_TRUE(late.wait_for("dm/loop/loop-1/state", [](const received_message& m) { return m.retained; }, 10s));
+  EXPECT_TRUE(late.wait_for(
+      "plant/l1/sp", [](const received_message& m) { return m.retained; }, 10s));
+  EXPECT_TRUE(late.wait_for(
+      "dm/loop/loop-1/state", [](const received_message& m) { return m.retained; }, 10s));
 }
 
 TEST_F(Service, CondensingReadingClosesTheValveAndRaisesABandEventWithinOneSecond) {
@@ -152,16 +156,20 @@ TEST_F(Service, RestartRestoresAcknowledgementShelvingAndSetpoint) {
   watcher_->publish("dm/cmd/ack", R"({"zone":"room-a","by":"tj"})");
   watcher_->publish("dm/cmd/shelve", R"({"zone":"room-b","by":"tj","minutes":30,"reason":"sensor swap"})");
   ASSERT_TRUE(wait_event(*watcher_, "shelve", "room-b", 5s, from));
-  const auto loop = watcher_->wait_for("dm/loop/loop-1/state", [](const received_message&) { return true; }, 5s);
+  const auto loop = watcher_->wait_for(
+      "dm/loop/loop-1/state", [](const received_message&) { return true; }, 5s);
   ASSERT_TRUE(loop);
   EXPECT_EQ(service_->stop(), 0);
 
   // A fresh subscriber after the restart sees the restored state before any reading.
   from = watcher_->size();
   start_service();
-  const auto a = watcher_->wait_for("dm/zone/room-a/state", [](const received_message&) { return true; }, 10s, from);
-  const auto b = watcher_->wait_for("dm/zone/room-b/state", [](const received_message&) { return true; }, 10s, from);
-  const auto l = watcher_->wait_for("dm/loop/loop-1/state", [](const received_message&) { return true; }, 10s, from);
+  const auto a = watcher_->wait_for(
+      "dm/zone/room-a/state", [](const received_message&) { return true; }, 10s, from);
+  const auto b = watcher_->wait_for(
+      "dm/zone/room-b/state", [](const received_message&) { return true; }, 10s, from);
+  const auto l = watcher_->wait_for(
+      "dm/loop/loop-1/state", [](const received_message&) { return true; }, 10s, from);
   ASSERT_TRUE(a && b && l);
   EXPECT_EQ(as_json(*a)["alarm"]["active"], true);
   EXPECT_EQ(as_json(*a)["alarm"]["acknowledged"], true);
@@ -179,7 +187,8 @@ TEST_F(Service, LastWillMarksTheServiceOfflineWhenKilled) {
   ASSERT_TRUE(offline);
   EXPECT_EQ(as_json(*offline)["reason"], "connection lost");
   mqtt_test_client late(broker_.uri(), {"dm/status"});
-  const auto retained = late.wait_for("dm/status", [](const received_message& m) { return m.retained; }, 10s);
+  const auto retained = late.wait_for(
+      "dm/status", [](const received_message& m) { return m.retained; }, 10s);
   ASSERT_TRUE(retained);
   EXPECT_EQ(as_json(*retained)["state"], "offline");
 }
@@ -208,7 +217,8 @@ TEST_F(Service, StartsWithTheBrokerDownAndConnectsWhenItComes) {
   const auto online = late.wait_for(
       "dm/status", [](const received_message& m) { return as_json(m).value("state", "") == "online"; }, 40s);
   ASSERT_TRUE(online);
-  const auto zone = late.wait_for("dm/zone/room-a/state", [](const received_message&) { return true; }, 10s);
+  const auto zone = late.wait_for(
+      "dm/zone/room-a/state", [](const received_message&) { return true; }, 10s);
   ASSERT_TRUE(zone);
   EXPECT_EQ(as_json(*zone)["band"], "unknown");
 }
@@ -247,6 +257,32 @@ TEST_F(Service, ReloadWithABadConfigKeepsTheOldOneAndRecordsIt) {
   ASSERT_TRUE(reloaded);
   EXPECT_TRUE(service_->running());
   EXPECT_NE(service_->log_text().find("reload rejected"), std::string::npos);
+}
+
+TEST_F(Service, ReloadThatReadsANewTopicIsRejectedAsAWhole) {
+  start_service();
+  publish_readings(17.5);
+  ASSERT_TRUE(wait_zone_state("room-a", "safe"));
+  std::string text = service_test_config(broker_.uri(), service_->db_path());
+  const std::string surface = "r/a/surface";
+  ASSERT_NE(text.find(surface), std::string::npos);
+  text.replace(text.find(surface), surface.size(), "r/a/surface-new");
+  service_->rewrite_config(text);
+  const std::size_t from = watcher_->size();
+  ASSERT_TRUE(service_->send_signal(SIGHUP));
+  const auto rejected = watcher_->wait_for(
+      "dm/events",
+      [](const received_message& m) {
+        const auto j = as_json(m);
+        return j.value("kind", "") == "service" &&
+               j.value("reason", "").find("reload rejected (new input topics need a restart: 'r/a/surface-new')") == 0;
+      },
+      10s, from);
+  ASSERT_TRUE(rejected);
+  // The old config stays: the zone still reads its old surface topic.
+  const std::size_t after = watcher_->size();
+  watcher_->publish("r/a/surface", "12.5");
+  ASSERT_TRUE(wait_event(*watcher_, "band", "room-a", 5s, after));
 }
 
 }  // namespace

@@ -93,13 +93,17 @@ std::vector<std::string> restart_needed(const site_config& old, const site_confi
   compare_http(old.http, fresh.http, d);
   // Subscriptions are made at start: a new topic is not received until then. A topic no
   // longer read needs nothing (its messages are simply not routed).
-  const std::vector<std::string> subscribed = input_topics(old);
-  for (const auto& topic : input_topics(fresh)) {
-    if (std::find(subscribed.begin(), subscribed.end(), topic) == subscribed.end()) {
-      d.add("input topic '" + topic + "' (new)");
-    }
-  }
+  for (const auto& topic : new_input_topics(old, fresh)) d.add("input topic '" + topic + "' (new)");
   return d.take();
+}
+
+std::vector<std::string> new_input_topics(const site_config& old, const site_config& fresh) {
+  const std::vector<std::string> subscribed = input_topics(old);
+  std::vector<std::string> added;
+  for (const auto& topic : input_topics(fresh)) {
+    if (std::find(subscribed.begin(), subscribed.end(), topic) == subscribed.end()) added.push_back(topic);
+  }
+  return added;
 }
 
 }  // namespace dewmargin

@@ -20,6 +20,10 @@ namespace dewmargin {
 // old one). Warn with restart_needed() first.
 [[nodiscard]] site_config with_start_settings_of(const site_config& running, site_config fresh);
 
+// The topics `fresh` reads that `old` does not (not subscribed until a restart). A reload with
+// any is refused as a whole: a zone reading a topic nobody receives would be half-applied.
+[[nodiscard]] std::vector<std::string> new_input_topics(const site_config& old, const site_config& fresh);
+
 // Every topic the config reads (inputs of loops and zones), each once, in config order.
 [[nodiscard]] std::vector<std::string> input_topics(const site_config& config);
 
