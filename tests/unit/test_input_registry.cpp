@@ -211,6 +211,36 @@ TEST(InputRegistry, AdoptTakesReadingsAndStatesByTopicAndField) {
   EXPECT_TRUE(fresh.apply(fresh.temp_id, "warm", 7).empty());
 }
 
+TEST(InputRegistry, AReloadThatChangesASwitchsWordsDecodesItsLastPayloadAgain) {
+  // A switch reports only on change: the state decoded with the old words must not outlive them.
+  input_config wet_old = topic("b/wet");
+  wet_old.active = {"1"};
+  input_registry before;
+  const std::size_t id = before.add(input_kind::condensation_switch, wet_old, {false, 0}, 180.0);
+  std::vector<input_transition> changes;
+  ASSERT_TRUE(before.apply(id, "1", at_s(1), at_s(1), plausibility_config{}, changes));
+  ASSERT_TRUE(before[id].active);
+
+  input_config inverted = topic("b/wet");  // the switch was wired inverted: fixed by a reload
+  inverted.active = {"0"};
+  inverted.inactive = {"1"};
+  input_registry after;
+  (void)after.add(input_kind::condensation_switch, inverted, {false, 0}, 180.0);
+  after.adopt(before);
+  EXPECT_FALSE(after[id].active);
+  EXPECT_EQ(after[id].status, input_status::ok);
+
+  input_config other_words = topic("b/wet");  // words that do not know "1": bad, last state kept
+  other_words.active = {"wet"};
+  other_words.inactive = {"dry"};
+  input_registry unknown;
+  (void)unknown.add(input_kind::condensation_switch, other_words, {false, 0}, 180.0);
+  unknown.adopt(before);
+  EXPECT_TRUE(unknown[id].active);
+  EXPECT_EQ(unknown[id].status, input_status::bad);
+  EXPECT_EQ(unknown[id].fault, input_fault::unknown_word);
+}
+
 TEST(InputRegistry, TopicsAreSortedAndUnique) {
   input_config a = topic("b/env");
   a.field = "/t";

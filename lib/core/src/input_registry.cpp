@@ -112,6 +112,7 @@ bool input_registry::apply(std::size_t id, std::string_view payload, timestamp r
   ++counts_.readings;
   if (is_switch_kind(s.kind)) {
     s.active = d.active;
+    s.last_switch_payload.assign(payload.data(), payload.size());
   } else {
     s.value = d.value;
   }
@@ -197,6 +198,20 @@ void input_registry::adopt(const input_registry& previous) {
       s.bad_reason = old.bad_reason;
       s.bad_messages = old.bad_messages;
       s.faults_reported = old.faults_reported;
+      s.last_switch_payload = old.last_switch_payload;
+      const bool words_changed = old.cfg->active != s.cfg->active || old.cfg->inactive != s.cfg->inactive;
+      if (is_switch_kind(s.kind) && words_changed && s.last_reading) {
+        // The state was decoded with the old words: decode its payload again with the new ones.
+        // A payload the new words do not know makes the input bad, its last state kept.
+        const auto again = decode_switch(s.last_switch_payload, *s.cfg);
+        if (again) {
+          s.active = again.value();
+        } else {
+          s.status = input_status::bad;
+          s.fault = input_fault::unknown_word;
+          s.bad_reason = again.err().message;
+        }
+      }
     }
   }
 }

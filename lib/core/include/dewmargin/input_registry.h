@@ -45,6 +45,8 @@ struct input_slot {
   double grace_s = 0.0;                   // after start, how long its zone waits for its first reading
   std::optional<double> value;            // last good value, core units
   bool active = false;                    // switches: last good state
+  std::string last_switch_payload;        // switches: the payload of that state (decoded again
+                                          // when a reload changes the active/inactive words)
   std::optional<timestamp> last_reading;  // last good reading
   std::optional<timestamp> last_message;  // last payload of any kind
   input_status status = input_status::awaiting;
