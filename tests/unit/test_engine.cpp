@@ -456,8 +456,9 @@ TEST(Engine, RestoredStateIsPublishedBeforeAnyReading) {
   EXPECT_EQ(z1["alarm"]["acknowledged"], true);
   EXPECT_EQ(z1["alarm"]["shelved_until"], "2027-01-15T08:10:00Z");
   EXPECT_EQ(z1["valve"], "closed");
-  EXPECT_EQ(d.last_json("dm/loop/loop-a/state")["setpoint_c"], 17.5);
-  EXPECT_EQ(d.last_payload("plant/a/sp"), "17.50");
+  // The stored setpoint is not sent: the plant gets the fail-safe max_c until the zones report.
+  EXPECT_EQ(d.last_json("dm/loop/loop-a/state")["setpoint_c"], 20.0);
+  EXPECT_EQ(d.last_payload("plant/a/sp"), "20.00");
   // The acknowledged alarm is not raised again when the zone reports condensing.
   d.send("b/z1/surface", "12.5");
   d.readings(24, 50, 12.5, 16);

@@ -80,7 +80,10 @@ void engine::state::restore(const restored_state& r, bool from_storage, timestam
     const valve_position p = parse_valve_position(zs.valve);
     if (z.valve && p != valve_position::unset) z.valve->restore(p);
   }
-  for (const auto& ls : r.loops) restore_setpoint(ls.loop, ls.setpoint_c);
+  // The loops' setpoints are not taken from storage: at start each stays at its fail-safe max_c
+  // until its zones have reported, and then falls no faster than fall_k_per_min. A stored low
+  // setpoint sent to the plant before any reading would be colder water on old knowledge.
+  (void)r.loops;
 }
 
 void engine::state::restore_setpoint(const std::string& loop, double setpoint_c) {
