@@ -10,6 +10,7 @@
 #include "dewmargin/config_loader.h"
 #include "dewmargin/engine.h"
 #include "dewmargin/forward_clock.h"
+#include "dewmargin/history_reader.h"
 #include "dewmargin/http_server.h"
 #include "dewmargin/input_registry.h"
 #include "dewmargin/json_dump.h"
@@ -100,8 +101,10 @@ class service {
 
     open_store();
     restored_state restored;
-    if (store_) {
-      auto r = store_->load_restored_state();
+    {
+      // A history that cannot be opened for writing (a read-only remount, a lock) may still be
+      // read: alarms, acknowledgements, shelving and valves are restored from it all the same.
+      auto r = store_ ? store_->load_restored_state() : read_only_restore(cfg.storage.path);
       if (r) {
         restored = std::move(r.value());
         log_->info("restored {} zone and {} loop states from {}", restored.zones.size(), restored.loops.size(),
@@ -154,6 +157,13 @@ class service {
     return o;
   }
 
+  static store_result<restored_state> read_only_restore(const std::string& path) {
+    auto reader = history_reader::open(path);
+    if (!reader) reader = history_reader::open_immutable(path);  // read-only media: WAL without -shm
+    if (!reader) return reader.err();
+    return reader.value().load_restored_state();
+  }
+
   void open_store() {
     last_store_attempt_ = std::chrono::steady_clock::now();
     auto opts = store_writer_options_from(core_->config().storage);
@@ -169,7 +179,18 @@ class service {
       return;
     }
     store_ = std::make_unique<store_writer>(std::move(opened.value()));
-    if (store_open_failed_) log_->info("history: {} opened, writing again", store_->path().string());
+    if (store_open_failed_) {
+      log_->info("history: {} opened, writing again", store_->path().string());
+      // The rows for restarts were not written meanwhile: every zone's and loop's state now,
+      // so that a restart restores today's alarms and valves, not those of the last write.
+      if (started_) {
+        const restored_state now = core_->snapshot();
+        engine_output rows;
+        rows.zone_snapshots = now.zones;
+        rows.loop_snapshots = now.loops;
+        store_->enqueue(rows);
+      }
+    }
     store_open_failed_ = false;
     store_retry_ = k_store_retry_first;
     store_seen_ = store_->counters();

@@ -237,6 +237,48 @@ TEST(FaultDatabase, ReadOnlyDirectory) {
   run_db_fault(f);
 }
 
+// A history that can be read but not written at start (a read-only remount after a storage
+// error): the acknowledged alarm and the closed valve are restored from it all the same.
+TEST(FaultDatabase, ReadOnlyHistoryStillRestoresAlarmsAndValves) {
+  if (!running_as_root()) GTEST_SKIP() << "remounting a tmpfs read-only needs root; skipped";
+  fault_row row;
+  row.name = "history read-only at start: restore";
+  row.injected = 1;
+  row.expected = "acknowledged alarm and closed valve restored from the read-only file";
+  fault_site site({}, {}, "fault-ro-restore");
+  tmpfs_mount fs(site.dir.path() / "ro", "4m");
+  site.change_db_path(site.dir.path() / "ro" / "history.db");
+  ASSERT_TRUE(site.start_service());
+  site.feed(12.0);  // surface below the dew point: condensing, valve closed
+  ASSERT_TRUE(site.wait_zone(
+      "room-a", [](const nlohmann::json& j) { return j["band"] == "condensing"; }, 10s));
+  site.watcher->publish("dm/cmd/ack", R"({"zone":"room-a","by":"ro"})");
+  ASSERT_TRUE(site.wait_zone(
+      "room-a", [](const nlohmann::json& j) { return j["alarm"]["acknowledged"] == true; }, 10s));
+  ASSERT_EQ(site.service->stop(), 0);
+  fs.remount("ro");
+
+  const std::size_t from = site.watcher->size();
+  ASSERT_TRUE(site.start_service());
+  // Before any reading: the restored state, published from the read-only file.
+  const auto restored = site.wait_zone(
+      "room-a",
+      [](const nlohmann::json& j) {
+        return j["alarm"]["active"] == true && j["alarm"]["acknowledged"] == true && j["valve"] == "closed";
+      },
+      10s, from);
+  const bool up = site.service->running();
+  row.survived = up ? 1 : 0;
+  row.crashes = up ? 0 : 1;
+  row.figures = restored ? "restored: alarm acknowledged, valve closed" : "NOT restored";
+  row.passed = up && restored.has_value();
+  if (!row.passed) row.why = "seen: " + row.figures;
+  (void)site.service->stop();
+  fs.remount("rw");
+  record(row);
+  EXPECT_TRUE(row.passed) << row.why;
+}
+
 TEST(FaultDatabase, LockedByAnotherProcess) {
   std::unique_ptr<write_lock> lock;
   db_fault f;

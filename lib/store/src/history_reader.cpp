@@ -368,7 +368,16 @@ class history_reader::impl {
 };
 
 store_result<history_reader> history_reader::open(const std::filesystem::path& file) {
-  auto db = store_detail::open_history_db(file, store_detail::open_mode::read_only, store_detail::open_settings{});
+  return open_with(file, store_detail::open_mode::read_only);
+}
+
+store_result<history_reader> history_reader::open_immutable(const std::filesystem::path& file) {
+  return open_with(file, store_detail::open_mode::immutable);
+}
+
+store_result<history_reader> history_reader::open_with(const std::filesystem::path& file,
+                                                       store_detail::open_mode mode) {
+  auto db = store_detail::open_history_db(file, mode, store_detail::open_settings{});
   if (!db.ok()) return db.err();
   std::int64_t version = 0;
   const int rc = store_detail::query_int64(db.value().get(), "PRAGMA user_version", version);

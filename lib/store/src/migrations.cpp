@@ -212,7 +212,7 @@ store_result<connection> open_history_db(const std::filesystem::path& file, open
     return make(file, store_error_kind::invalid_options, "internal: migrations must be numbered 1..N in order");
   }
   const int target_version = migrations.back().version;
-  const bool read_only = mode == open_mode::read_only;
+  const bool read_only = mode != open_mode::read_write;
 
   std::error_code ec;
   const auto status = std::filesystem::status(file, ec);
@@ -226,7 +226,25 @@ store_result<connection> open_history_db(const std::filesystem::path& file, open
   // reader's caller), so SQLite's per-call locking is pure cost.
   const int flags =
       (read_only ? SQLITE_OPEN_READONLY : SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE) | SQLITE_OPEN_NOMUTEX;
-  int rc = sqlite3_open_v2(file.string().c_str(), &raw, flags, nullptr);
+  std::string name = file.string();
+  int open_flags = flags;
+  if (mode == open_mode::immutable) {
+    // A URI: '%', '?' and '#' in the path are escaped (RFC 3986, as SQLite reads it).
+    std::string uri = "file:";
+    for (const char c : name) {
+      if (c == '%' || c == '?' || c == '#') {
+        static const char* const k_hex = "0123456789ABCDEF";
+        uri += '%';
+        uri += k_hex[(static_cast<unsigned char>(c) >> 4U) & 0xFU];
+        uri += k_hex[static_cast<unsigned char>(c) & 0xFU];
+      } else {
+        uri += c;
+      }
+    }
+    name = uri + "?immutable=1";
+    open_flags |= SQLITE_OPEN_URI;
+  }
+  int rc = sqlite3_open_v2(name.c_str(), &raw, open_flags, nullptr);
   connection db(raw);  // SQLite hands out a handle even on failure; it must be closed
   if (rc != SQLITE_OK) {
     return make(file, store_error_kind::cannot_open,

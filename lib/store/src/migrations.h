@@ -23,6 +23,8 @@ const std::vector<migration>& schema_migrations();
 enum class open_mode {
   read_write,  // create when missing, migrate when older; the service's writer
   read_only,   // SQLITE_OPEN_READONLY; the file must exist and be at the latest version
+  immutable,   // read_only, and the file is taken as unchangeable (URI immutable=1): for a file
+               // on read-only media, where a WAL file cannot be opened otherwise (no -shm)
 };
 
 struct open_settings {

@@ -16,6 +16,9 @@
 #include "dewmargin/zone_period.h"
 
 namespace dewmargin {
+namespace store_detail {
+enum class open_mode;  // migrations.h
+}  // namespace store_detail
 
 struct event_filter {
   std::optional<std::string> subject_id;  // a zone, loop or dehumidifier id
@@ -42,6 +45,9 @@ class history_reader {
  public:
   // Fails when the file is missing, unreadable, not SQLite, foreign, or of another schema version.
   [[nodiscard]] static store_result<history_reader> open(const std::filesystem::path& file);
+  // The same for a file nobody can write (read-only media): SQLite takes it as unchangeable,
+  // which a WAL file on such media needs to be readable at all. Never for a file being written.
+  [[nodiscard]] static store_result<history_reader> open_immutable(const std::filesystem::path& file);
 
   history_reader(history_reader&&) noexcept;
   history_reader& operator=(history_reader&&) noexcept;
@@ -87,6 +93,7 @@ class history_reader {
  private:
   class impl;
   explicit history_reader(std::unique_ptr<impl> p);
+  static store_result<history_reader> open_with(const std::filesystem::path& file, store_detail::open_mode mode);
   std::unique_ptr<impl> impl_;
 };
 
