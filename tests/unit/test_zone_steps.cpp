@@ -63,31 +63,43 @@ TEST(ZoneSteps, TheSwitchMakesAWaitingZoneCondensing) {
   EXPECT_TRUE(c.alarm.status().active);
 }
 
+// Dew point 10 °C, supply 16 °C, a steady margin of 4 K: nothing but the band acts.
+valve_outlook dry_air() {
+  valve_outlook o;
+  o.margin_k = 4.0;
+  o.dew_point_c = 10.0;
+  o.supply_c = 16.0;
+  return o;
+}
+
 TEST(ZoneSteps, ValveStepNamesTheWindowOnlyWhenThereIsOne) {
   for (const auto& [window, reason] : std::vector<std::pair<std::optional<bool>, std::string>>{
            {false, "zone safe, window closed for 10 s"}, {std::nullopt, "zone safe for 10 s"}}) {
-    zone_valve v(10);
+    zone_valve v(valve_rules{10, 5, 1, 1});
     v.restore(valve_position::closed);
-    EXPECT_FALSE(step_valve(v, band::safe, false, window, at_s(0)));
-    const auto d = step_valve(v, band::safe, false, window, at_s(10));
+    EXPECT_FALSE(step_valve(v, band::safe, false, window, dry_air(), at_s(0)));
+    const auto d = step_valve(v, band::safe, false, window, dry_air(), at_s(10));
     ASSERT_TRUE(d);
     EXPECT_EQ(d->reason, reason);
   }
-  zone_valve v(10);
-  const auto closed = step_valve(v, band::safe, false, true, at_s(0));
+  zone_valve v(valve_rules{10, 5, 1, 1});
+  const auto closed = step_valve(v, band::safe, false, true, dry_air(), at_s(0));
   ASSERT_TRUE(closed);
   EXPECT_EQ(closed->reason, "window open");
 }
 
 TEST(ZoneValve, CarryOverKeepsPositionAndTheRunningReopenTimer) {
-  zone_valve old(600);
+  valve_conditions safe{band::safe, false, false, true};
+  safe.dew_point_c = 10.0;
+  safe.supply_c = 16.0;
+  zone_valve old(valve_rules{600, 5, 1, 1});
   old.restore(valve_position::closed);
-  EXPECT_FALSE(old.update({band::safe, false, false, true}, at_s(0)));  // fine since 0 s
-  zone_valve reloaded(300);                                             // the new config's delay
+  EXPECT_FALSE(old.update(safe, at_s(0)));         // fine since 0 s
+  zone_valve reloaded(valve_rules{300, 5, 1, 1});  // the new config's delay
   reloaded.carry_over(old);
   EXPECT_EQ(reloaded.position(), valve_position::closed);
-  EXPECT_FALSE(reloaded.update({band::safe, false, false, true}, at_s(299)));
-  const auto d = reloaded.update({band::safe, false, false, true}, at_s(300));
+  EXPECT_FALSE(reloaded.update(safe, at_s(299)));
+  const auto d = reloaded.update(safe, at_s(300));
   ASSERT_TRUE(d);
   EXPECT_EQ(d->to, valve_position::open);
 }

@@ -260,10 +260,16 @@ void read_dehumidifiers(const YAML::Node& node, source_mark at, reading& r) {
       const std::string owner = m.context() + " dew_point_request";
       if (expect_map(req, "dew_point_request", " like { topic: ..., min_c: ..., max_c: ... }",
                      m.value_mark("dew_point_request"), r.diag)) {
-        const map_reader rm(req, owner, {"topic", "min_c", "max_c", "offset_k"}, r.diag);
-        if (auto topic = read_output_topic(rm, owner, r)) d.dew_point_request.topic = *topic;
-        read_range_c(rm, d.dew_point_request.min_c, d.dew_point_request.max_c);
-        rm.number_into("offset_k", number_rule::non_negative, d.dew_point_request.offset_k);
+        const map_reader rm(
+            req, owner, {"topic", "min_c", "max_c", "offset_k", "step_s", "respond_k", "max_step_k", "trim_k"}, r.diag);
+        dew_point_request_config& q = d.dew_point_request;
+        if (auto topic = read_output_topic(rm, owner, r)) q.topic = *topic;
+        read_range_c(rm, q.min_c, q.max_c);
+        rm.number_into("offset_k", number_rule::non_negative, q.offset_k);
+        rm.number_into("step_s", number_rule::positive, q.step_s);
+        rm.number_into("respond_k", number_rule::non_negative, q.respond_k);
+        rm.number_into("max_step_k", number_rule::non_negative, q.max_step_k);
+        rm.number_into("trim_k", number_rule::non_negative, q.trim_k);
       }
     }
     r.config.dehumidifiers.push_back(std::move(d));

@@ -23,7 +23,7 @@ void engine::state::build() {
   zones.reserve(cfg.zones.size());
   for (std::size_t i = 0; i < cfg.zones.size(); ++i) build_zone(i, loop_index);
   for (const auto& dc : cfg.dehumidifiers) {
-    dehumidifier_rt d{&dc, {}, std::nullopt};
+    dehumidifier_rt d{&dc, {}, std::nullopt, {}};
     for (const auto& zid : dc.zones) {
       const auto it = zone_index.find(zid);
       if (it != zone_index.end()) d.zones.push_back(it->second);
@@ -48,7 +48,11 @@ void engine::state::build_zone(std::size_t i, const std::unordered_map<std::stri
     z.switch_slot = inputs.add(input_kind::condensation_switch, *zc.condensation_switch, owner, stale_s);
   }
   if (zc.window_contact) z.window_slot = inputs.add(input_kind::window_contact, *zc.window_contact, owner, stale_s);
-  if (zc.valve) z.valve.emplace(zc.valve->reopen_after_s);
+  if (zc.valve) {
+    const valve_config& v = *zc.valve;
+    z.valve.emplace(valve_rules{v.reopen_after_s, v.close_ahead_min,
+                                v.open_margin_k.value_or(zc.thresholds.margin_alarm_k), zc.thresholds.margin_alarm_k});
+  }
   if (li != loop_index.end()) loops[loop].zones.push_back(i);
   zone_index[zc.id] = i;
 }

@@ -9,8 +9,13 @@
 namespace dewmargin {
 namespace {
 
-constexpr double k_setpoint_event_k = 0.1;  // design.md: a `setpoint` event every 0.1 K
+constexpr double k_setpoint_publish_k = 0.1;  // the retained state goes out at once on this move
 constexpr double k_epsilon = 1e-9;
+constexpr double k_setpoint_settle_s = 300.0;  // a new limit or governing zone must stand this long
+
+// A fall held to fall_k_per_min is a transient, not a limit: as an event it counts as none,
+// or every small rise and fall of a dew point would make two events.
+setpoint_limit event_limit(setpoint_limit l) { return l == setpoint_limit::rate ? setpoint_limit::none : l; }
 
 }  // namespace
 
@@ -32,15 +37,36 @@ void engine::state::tick_loops(timestamp now, engine_output& out) {
   }
 }
 
-// Setpoint event (every 0.1 K of movement) and the loop's publication.
+// Setpoint event (a move of publish.setpoint_event_k, or a new limit or governing zone) and
+// the loop's publication, which follows every 0.05 K.
 void engine::state::loop_outputs(loop_rt& l, timestamp now, engine_output& out) {
   const double sp = l.reset.setpoint_c();
-  if (std::fabs(sp - l.last_event_setpoint_c) >= k_setpoint_event_k - k_epsilon) {
+  const setpoint_limit limit = event_limit(l.reset.limited());
+  const bool moved = std::fabs(sp - l.last_event_setpoint_c) >= cfg.publish.setpoint_event_k - k_epsilon &&
+                     sp != l.last_event_setpoint_c;
+  // A new limit or governing zone is news once it has stood for k_setpoint_settle_s: zones
+  // that share the same outdoor air have dew points within hundredths of a kelvin and take
+  // turns governing, and a target near min_c or max_c flips in and out of the limit.
+  const std::string& governing = l.reset.governing_zone();
+  const bool differs = limit != l.last_event_limit || (!governing.empty() && governing != l.last_event_governing);
+  if (!differs) {
+    l.change_since.reset();
+  } else if (!l.change_since || limit != l.pending_limit || governing != l.pending_governing) {
+    l.change_since = now;
+    l.pending_limit = limit;
+    l.pending_governing = governing;
+  }
+  const bool settled = differs && seconds_between(*l.change_since, now) >= k_setpoint_settle_s;
+  if (moved || settled) {
     events.emit(out, now, l.subject(), event_kind::setpoint, [&](event_json& e) {
       e.number("from", l.last_event_setpoint_c).number("to", sp).text("reason", l.reset.reason());
       e.text("limited", setpoint_limit_name(l.reset.limited()));
+      e.text_or_null("governing_zone", l.reset.governing_zone());
     });
     l.last_event_setpoint_c = sp;
+    l.last_event_limit = limit;
+    if (!governing.empty()) l.last_event_governing = governing;
+    l.change_since.reset();
     out.loop_snapshots.push_back({l.cfg->id, sp, now});
   }
   publish_loop(l, now, out, false);
@@ -49,7 +75,7 @@ void engine::state::loop_outputs(loop_rt& l, timestamp now, engine_output& out) 
 void engine::state::publish_loop(loop_rt& l, timestamp now, engine_output& out, bool force) {
   const double sp = l.reset.setpoint_c();
   const bool significant = force || !l.published ||
-                           std::fabs(sp - l.published_setpoint_c) >= k_setpoint_event_k - k_epsilon ||
+                           std::fabs(sp - l.published_setpoint_c) >= k_setpoint_publish_k - k_epsilon ||
                            l.reset.limited() != l.published_limit;
   const auto value_of = [&](const std::optional<std::size_t>& slot) {
     return slot ? inputs.fresh_value(*slot, now) : std::nullopt;
@@ -91,10 +117,11 @@ void engine::state::tick_dehumidifiers(timestamp now, engine_output& out) {
     refs.reserve(d.zones.size());
     for (std::size_t zi : d.zones) {
       const zone_rt& z = zones[zi];
-      refs.push_back({&z.cfg->id, z.margin.surface_min_c, z.margin.supply_c});
+      refs.push_back({&z.cfg->id, z.margin.surface_min_c, z.margin.supply_c, z.condition.bands.current(),
+                      z.margin.margin_k, z.margin.unknown_is_fault, z.valve_held()});
     }
     const auto& rc = d.cfg->dew_point_request;
-    const dehumidifier_request r = compute_dehumidifier_request(refs, rc);
+    const dehumidifier_request r = d.trim.update(refs, rc, now);
     if (!dehumidifier_request_moved(d.published_request_c, r.request_c)) continue;
     events.emit(out, now, {subject_type::dehumidifier, d.cfg->id}, event_kind::dehumidify, [&](event_json& e) {
       e.number("from", d.published_request_c).number("to", r.request_c).text("reason", r.reason);

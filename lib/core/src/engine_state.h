@@ -13,6 +13,7 @@
 
 #include "dewmargin/change_gate.h"
 #include "dewmargin/command_guard.h"
+#include "dewmargin/dehumidifier_request.h"
 #include "dewmargin/engine.h"
 #include "dewmargin/event_emitter.h"
 #include "dewmargin/input_registry.h"
@@ -53,9 +54,14 @@ struct zone_rt {
   band published_band = band::unknown;
   alarm_status published_alarm;
   valve_position published_valve = valve_position::unset;
+  std::string published_hold;
+  std::string published_source;             // margin_source, "" for null
+  std::optional<double> published_minutes;  // minutes_to_condensation as published
   bool published = false;
 
-  [[nodiscard]] bool counts_for_reset() const { return !valve || valve->counts_as_open(); }
+  // A zone held by the start-up permissive counts: its dew point must raise the water.
+  [[nodiscard]] bool counts_for_reset() const { return !valve || valve->counts_as_open() || valve->held(); }
+  [[nodiscard]] bool valve_held() const { return valve && valve->held(); }
   [[nodiscard]] event_subject subject() const { return {subject_type::zone, cfg->id}; }
 };
 
@@ -72,6 +78,12 @@ struct loop_rt {
   std::optional<double> cooling_kw;
 
   double last_event_setpoint_c;
+  setpoint_limit last_event_limit = setpoint_limit::max;
+  std::string last_event_governing;
+  // A limit or governing zone that differs from the last event's, and since when.
+  std::optional<timestamp> change_since;
+  setpoint_limit pending_limit = setpoint_limit::none;
+  std::string pending_governing;
   change_gate<5> gate;
   double published_setpoint_c = 0.0;
   setpoint_limit published_limit = setpoint_limit::none;
@@ -85,6 +97,7 @@ struct dehumidifier_rt {
   const dehumidifier_config* cfg;
   std::vector<std::size_t> zones;
   std::optional<double> published_request_c;  // what the plant was last told
+  dehumidifier_trim trim{};
 };
 
 struct engine::state {

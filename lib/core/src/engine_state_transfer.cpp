@@ -103,12 +103,19 @@ void engine::state::adopt(const state& p) {
   // What the plant was last told stays the reference for the republish rules.
   for (loop_rt& l : loops) {
     for (const loop_rt& old : p.loops) {
-      if (old.cfg->id == l.cfg->id) l.published_bare = old.published_bare;
+      if (old.cfg->id != l.cfg->id) continue;
+      l.published_bare = old.published_bare;
+      // And the last setpoint event, so that a reload alone makes none.
+      l.last_event_limit = old.last_event_limit;
+      l.last_event_governing = old.last_event_governing;
     }
   }
   for (dehumidifier_rt& d : dehumidifiers) {
     for (const dehumidifier_rt& old : p.dehumidifiers) {
-      if (old.cfg->id == d.cfg->id) d.published_request_c = old.published_request_c;
+      if (old.cfg->id == d.cfg->id) {
+        d.published_request_c = old.published_request_c;
+        d.trim = old.trim;  // the trimmed request and its step timer go on
+      }
     }
   }
 }

@@ -89,6 +89,7 @@ std::string format_zone_state(const zone_state_view& v) {
   j["valve"] = text_or_null(v.valve);
   j["alarm"] = alarm_object(v.alarm);
   j["minutes_to_condensation"] = rounded(v.minutes_to_condensation);
+  j["valve_hold"] = text_or_null(v.valve_hold);
   return json_dump(j);
 }
 

@@ -23,12 +23,18 @@ band_step step_band_and_alarm(zone_condition& c, const zone_margin& m, bool swit
 }
 
 std::optional<valve_decision> step_valve(zone_valve& v, band b, bool unknown_is_fault, std::optional<bool> window_open,
-                                         timestamp now) {
+                                         const valve_outlook& outlook, timestamp now) {
   valve_conditions vc;
   vc.zone_band = b;
   vc.unknown_is_fault = unknown_is_fault;
   vc.window_open = window_open.value_or(false);
   vc.has_window = window_open.has_value();
+  vc.margin_k = outlook.margin_k;
+  vc.minutes_to_condensation = outlook.minutes_to_condensation;
+  vc.reset_at_limit = outlook.reset_at_limit;
+  vc.dew_point_c = outlook.dew_point_c;
+  vc.supply_c = outlook.supply_c;
+  vc.supply_awaiting = outlook.supply_awaiting;
   return v.update(vc, now);
 }
 
