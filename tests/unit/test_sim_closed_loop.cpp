@@ -48,8 +48,8 @@ void show(const simulation& sim) {
 }
 
 TEST(SimClosedLoop, SupervisionKeepsSurfacesDryWhereTheBaselineCondenses) {
-  for (const day_case& c : {day_case{"config/demo.yaml", "config/scenarios/short.yaml", 200.0, 10.0, true},
-                            day_case{"config/clinic.yaml", "config/scenarios/clinic-storm.yaml", 100.0, 5.0, false}}) {
+  for (const day_case& c : {day_case{"config/demo.yaml", "config/scenarios/short.yaml", 200.0, 1.0, true},
+                            day_case{"config/clinic.yaml", "config/scenarios/clinic-storm.yaml", 100.0, 1.0, false}}) {
     SCOPED_TRACE(c.scenario);
     auto baseline = make(c, false);
     std::vector<outbound> ignored;
