@@ -554,6 +554,10 @@ TEST(ConfigLoader, PreventiveRulesTakeTheirDefaultsAndTheirKeys) {
   EXPECT_EQ(q.respond_k, 0.3);
   EXPECT_EQ(q.max_step_k, 1.0);
   EXPECT_EQ(q.trim_k, 0.1);
+  EXPECT_FALSE(d.dehumidifiers[0].fault.has_value());
+  EXPECT_FALSE(d.dehumidifiers[0].supply_dew_point.has_value());
+  EXPECT_EQ(d.dehumidifiers[0].fault_k, 2.0);
+  EXPECT_EQ(d.dehumidifiers[0].fault_after_s, 600.0);
 
   const std::string zone_set =
       "zones:\n"
@@ -562,7 +566,9 @@ TEST(ConfigLoader, PreventiveRulesTakeTheirDefaultsAndTheirKeys) {
   const std::string doas_set =
       "dehumidifiers:\n"
       "  - {id: d1, zones: [z1], dew_point_request: {topic: p/dp, min_c: 8, max_c: 14, step_s: 300,\n"
-      "     respond_k: 0.2, max_step_k: 0.6, trim_k: 0.05}}\n";
+      "     respond_k: 0.2, max_step_k: 0.6, trim_k: 0.05},\n"
+      "     fault: {topic: p/doas-fault, active: [tripped]}, supply_dew_point: {topic: p/doas-dp},\n"
+      "     fault_k: 3, fault_after_s: 900}\n";
   const auto set =
       load_config_text(k_head + "publish: {setpoint_event_k: 0.2}\n" + k_loop + zone_set + doas_set, "t.yaml");
   ASSERT_TRUE(set.ok()) << all_errors(set);
@@ -575,6 +581,14 @@ TEST(ConfigLoader, PreventiveRulesTakeTheirDefaultsAndTheirKeys) {
   EXPECT_EQ(r.respond_k, 0.2);
   EXPECT_EQ(r.max_step_k, 0.6);
   EXPECT_EQ(r.trim_k, 0.05);
+  const dehumidifier_config& u = c.dehumidifiers[0];
+  ASSERT_TRUE(u.fault.has_value());
+  EXPECT_EQ(u.fault->topic, "p/doas-fault");
+  EXPECT_EQ(u.fault->active, std::vector<std::string>{"tripped"});
+  ASSERT_TRUE(u.supply_dew_point.has_value());
+  EXPECT_EQ(u.supply_dew_point->topic, "p/doas-dp");
+  EXPECT_EQ(u.fault_k, 3.0);
+  EXPECT_EQ(u.fault_after_s, 900.0);
 }
 
 TEST(ConfigLoader, ClockDefaultsToWallAndReadsEventTime) {

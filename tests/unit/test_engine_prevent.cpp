@@ -146,5 +146,77 @@ TEST(EnginePrevent, TheDehumidifierRespondsToZonesThatAreTight) {
   EXPECT_EQ(ev.back()["reason"], "trim-and-respond: 1 request, worst z1 (tight): -0.30 K");
 }
 
+// Rule 4: the unit's fault switch raises one alarm on the unit and suppresses by design its
+// zones' tight/alarm annunciation; condensing still annunciates.
+TEST(EnginePrevent, AUnitFaultIsOneAlarmAndSuppressesItsZonesAlarmBand) {
+  site_config cfg = small_site();
+  cfg.dehumidifiers[0].fault = testing_support::topic_input("plant/doas/fault");
+  cfg.dehumidifiers[0].fault->active = {"fault"};
+  cfg.dehumidifiers[0].supply_dew_point = testing_support::topic_input("plant/doas/supply-dp");
+  engine_driver d(cfg);
+  d.readings(24, 50, 17, 16);
+  d.send("plant/doas/fault", "ok");
+  d.send("plant/doas/supply-dp", "12.9");
+  d.advance(1);
+  auto unit = d.last_json("dm/dehumidifier/doas-1/state");
+  ASSERT_FALSE(unit.is_null());
+  EXPECT_EQ(unit["fault"], false);
+  EXPECT_EQ(unit["supply_dew_point_c"], 12.9);
+
+  d.send("plant/doas/fault", "fault");
+  d.advance(1);
+  unit = d.last_json("dm/dehumidifier/doas-1/state");
+  EXPECT_EQ(unit["fault"], true);
+  EXPECT_EQ(unit["reason"], "fault switch active");
+  EXPECT_EQ(unit["alarm"]["active"], true);
+  EXPECT_EQ(unit["alarm"]["acknowledged"], false);
+  const auto unit_event = d.events("band").back();
+  EXPECT_EQ(unit_event["dehumidifier"], "doas-1");
+  EXPECT_EQ(unit_event["from"], "normal");
+  EXPECT_EQ(unit_event["to"], "fault");
+
+  // z1 falls into `alarm` (margin 0.5 K): logged, marked, not annunciated.
+  for (int i = 0; i < 8; ++i) {
+    d.readings(24, rh_for(24, 16.5), 17, 16);
+    d.advance(10);
+  }
+  const auto z1 = d.last_json("dm/zone/z1/state");
+  ASSERT_EQ(z1["band"], "alarm");
+  EXPECT_EQ(z1["alarm"]["active"], false);
+  EXPECT_EQ(z1["suppressed_by"], "doas-1");
+  bool marked = false;
+  for (const auto& e : d.events("band")) {
+    if (e.contains("zone") && e["zone"] == "z1" && e["to"] == "alarm") marked = e["suppressed_by"] == "doas-1";
+  }
+  EXPECT_TRUE(marked);
+
+  // Condensing always annunciates.
+  d.send("b/z1/wet", "wet");
+  d.advance(1);
+  EXPECT_EQ(d.last_json("dm/zone/z1/state")["band"], "condensing");
+  EXPECT_EQ(d.last_json("dm/zone/z1/state")["alarm"]["active"], true);
+}
+
+TEST(EnginePrevent, AUnitThatCannotDeliverIsAFaultAfterFaultAfterS) {
+  site_config cfg = small_site();
+  cfg.dehumidifiers[0].supply_dew_point = testing_support::topic_input("plant/doas/supply-dp");
+  engine_driver d(cfg);
+  // Request 13 °C (feed-forward); the unit delivers 15.5 °C: 2.5 K above.
+  for (int i = 0; i < 59; ++i) {
+    d.readings(24, 50, 17, 16);
+    d.send("plant/doas/supply-dp", "15.5");
+    d.advance(10);
+  }
+  EXPECT_EQ(d.last_json("dm/dehumidifier/doas-1/state")["fault"], false) << "not yet 600 s";
+  for (int i = 0; i < 3; ++i) {
+    d.readings(24, 50, 17, 16);
+    d.send("plant/doas/supply-dp", "15.5");
+    d.advance(10);
+  }
+  const auto unit = d.last_json("dm/dehumidifier/doas-1/state");
+  EXPECT_EQ(unit["fault"], true);
+  EXPECT_NE(unit["reason"].get<std::string>().find("above the request"), std::string::npos) << unit.dump();
+}
+
 }  // namespace
 }  // namespace dewmargin

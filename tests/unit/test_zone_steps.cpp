@@ -88,6 +88,35 @@ TEST(ZoneSteps, ValveStepNamesTheWindowOnlyWhenThereIsOne) {
   EXPECT_EQ(closed->reason, "window open");
 }
 
+// Issue 10, rule 4: a zone's unit in fault suppresses its tight/alarm annunciation by design
+// (ANSI/ISA-18.2); condensing still annunciates.
+TEST(ZoneSteps, SuppressionKeepsAlarmBandFromTheAlarmButNotCondensing) {
+  band_thresholds t;
+  t.confirm_s = 0;
+  zone_condition c{t};
+  zone_margin m;
+  m.margin_k = 0.5;
+  m.dew_point_c = 17.0;
+  const band_step alarm = step_band_and_alarm(c, m, false, at_s(0), true);
+  EXPECT_EQ(alarm.after, band::alarm);
+  EXPECT_TRUE(alarm.suppressed);
+  EXPECT_FALSE(c.alarm.status().active) << "nothing to acknowledge";
+  EXPECT_FALSE(c.alarm_condition);
+
+  m.margin_k = -0.2;
+  const band_step wet = step_band_and_alarm(c, m, false, at_s(1), true);
+  EXPECT_EQ(wet.after, band::condensing);
+  EXPECT_FALSE(wet.suppressed);
+  EXPECT_TRUE(c.alarm.status().active);
+
+  zone_condition later{t};
+  m.margin_k = 0.5;
+  step_band_and_alarm(later, m, false, at_s(0), true);
+  const band_step after = step_band_and_alarm(later, m, false, at_s(1), false);
+  EXPECT_FALSE(after.suppressed);
+  EXPECT_TRUE(later.alarm.status().active) << "annunciated once the unit's fault clears";
+}
+
 TEST(ZoneValve, CarryOverKeepsPositionAndTheRunningReopenTimer) {
   valve_conditions safe{band::safe, false, false, true};
   safe.dew_point_c = 10.0;

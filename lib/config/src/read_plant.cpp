@@ -234,7 +234,9 @@ void read_dehumidifiers(const YAML::Node& node, source_mark at, reading& r) {
                    "each dehumidifier must be a map with id, zones and dew_point_request, got " + describe(item));
       continue;
     }
-    const map_reader m(item, entity_context(item, "dehumidifier", index), {"id", "zones", "dew_point_request"}, r.diag);
+    const map_reader m(item, entity_context(item, "dehumidifier", index),
+                       {"id", "zones", "dew_point_request", "fault", "supply_dew_point", "fault_k", "fault_after_s"},
+                       r.diag);
     dehumidifier_config d;
     if (auto id = read_id(m, "dehumidifier", r.index.dehumidifier_ids, r.diag)) d.id = *id;
     if (m.require("zones")) {
@@ -272,6 +274,10 @@ void read_dehumidifiers(const YAML::Node& node, source_mark at, reading& r) {
         rm.number_into("trim_k", number_rule::non_negative, q.trim_k);
       }
     }
+    read_optional_input(m, "fault", input_kind::binary, d.fault, r);
+    read_optional_input(m, "supply_dew_point", input_kind::temperature, d.supply_dew_point, r);
+    m.number_into("fault_k", number_rule::non_negative, d.fault_k);
+    m.number_into("fault_after_s", number_rule::non_negative, d.fault_after_s);
     r.config.dehumidifiers.push_back(std::move(d));
   }
 }

@@ -22,11 +22,23 @@ void engine::state::build() {
   }
   zones.reserve(cfg.zones.size());
   for (std::size_t i = 0; i < cfg.zones.size(); ++i) build_zone(i, loop_index);
-  for (const auto& dc : cfg.dehumidifiers) {
-    dehumidifier_rt d{&dc, {}, std::nullopt, {}};
+  units_of_zone.assign(zones.size(), {});
+  for (std::size_t ui = 0; ui < cfg.dehumidifiers.size(); ++ui) {
+    const dehumidifier_config& dc = cfg.dehumidifiers[ui];
+    dehumidifier_rt d(&dc);
     for (const auto& zid : dc.zones) {
       const auto it = zone_index.find(zid);
-      if (it != zone_index.end()) d.zones.push_back(it->second);
+      if (it == zone_index.end()) continue;
+      d.zones.push_back(it->second);
+      units_of_zone[it->second].push_back(ui);
+    }
+    input_owner owner;
+    owner.is_dehumidifier = true;
+    owner.index = ui;
+    const double stale_s = cfg.defaults.stale_after_s;
+    if (dc.fault) d.fault_slot = inputs.add(input_kind::unit_fault, *dc.fault, owner, stale_s);
+    if (dc.supply_dew_point) {
+      d.supply_dew_point_slot = inputs.add(input_kind::supply_dew_point, *dc.supply_dew_point, owner, stale_s);
     }
     dehumidifiers.push_back(std::move(d));
   }

@@ -122,13 +122,56 @@ void engine::state::tick_dehumidifiers(timestamp now, engine_output& out) {
     }
     const auto& rc = d.cfg->dew_point_request;
     const dehumidifier_request r = d.trim.update(refs, rc, now);
-    if (!dehumidifier_request_moved(d.published_request_c, r.request_c)) continue;
-    events.emit(out, now, {subject_type::dehumidifier, d.cfg->id}, event_kind::dehumidify, [&](event_json& e) {
-      e.number("from", d.published_request_c).number("to", r.request_c).text("reason", r.reason);
-    });
-    out.messages.push_back({rc.topic, format_bare_number(r.request_c), true, message_class::command});
-    d.published_request_c = r.request_c;
+    const bool moved = dehumidifier_request_moved(d.published_request_c, r.request_c);
+    if (moved) {
+      events.emit(out, now, d.subject(), event_kind::dehumidify, [&](event_json& e) {
+        e.number("from", d.published_request_c).number("to", r.request_c).text("reason", r.reason);
+      });
+      out.messages.push_back({rc.topic, format_bare_number(r.request_c), true, message_class::command});
+      d.published_request_c = r.request_c;
+    }
+    judge_unit_fault(d, now, out);
+    publish_dehumidifier(d, now, out, moved);
   }
+}
+
+// The unit's own alarm: one `band` event (normal <-> fault) per change, alarm-related.
+void engine::state::judge_unit_fault(dehumidifier_rt& d, timestamp now, engine_output& out) {
+  if (!d.fault_slot && !d.supply_dew_point_slot) return;
+  unit_fault_inputs in;
+  in.switch_active = d.fault_slot && inputs[*d.fault_slot].active;
+  if (d.supply_dew_point_slot) in.supply_dew_point_c = inputs.fresh_value(*d.supply_dew_point_slot, now);
+  in.request_c = d.published_request_c;
+  const alarm_status before = d.alarm.status();
+  const bool changed = d.fault.update(in, now);
+  d.alarm.on_band(d.fault.fault() ? band::alarm : band::safe, false);
+  if (!changed && d.alarm.status() == before) return;
+  events.emit(
+      out, now, d.subject(), event_kind::band,
+      [&](event_json& e) {
+        const bool was_fault = changed ? !d.fault.fault() : d.fault.fault();
+        e.text("from", was_fault ? "fault" : "normal").text("to", d.fault.fault() ? "fault" : "normal");
+        e.number("supply_dew_point_c", in.supply_dew_point_c).number("request_c", in.request_c);
+        e.text("reason", d.fault.fault() ? d.fault.reason() : "no fault");
+        e.alarm(d.alarm.status());
+      },
+      true);
+  publish_dehumidifier(d, now, out, true);
+}
+
+void engine::state::publish_dehumidifier(dehumidifier_rt& d, timestamp now, engine_output& out, bool force) {
+  if (!d.fault_slot && !d.supply_dew_point_slot) return;  // a unit without its own inputs has no state
+  const std::optional<double> measured_c =
+      d.supply_dew_point_slot ? inputs.fresh_value(*d.supply_dew_point_slot, now) : std::nullopt;
+  const bool moved = measured_c.has_value() != d.published_supply_dew_point_c.has_value() ||
+                     (measured_c && std::fabs(*measured_c - *d.published_supply_dew_point_c) >= 0.1 - k_epsilon);
+  if (!force && d.published && !moved) return;
+  const dehumidifier_state_view v{
+      cfg.site, d.cfg->id, now, d.published_request_c, measured_c, d.fault.fault(), d.fault.reason(), d.alarm.status()};
+  out.messages.push_back({cfg.publish.prefix + "/dehumidifier/" + d.cfg->id + "/state", format_dehumidifier_state(v),
+                          true, message_class::state});
+  d.published = true;
+  d.published_supply_dew_point_c = measured_c;
 }
 
 }  // namespace dewmargin

@@ -115,6 +115,8 @@ void engine::state::adopt(const state& p) {
       if (old.cfg->id == d.cfg->id) {
         d.published_request_c = old.published_request_c;
         d.trim = old.trim;  // the trimmed request and its step timer go on
+        d.fault.carry_over(old.fault);
+        d.alarm = old.alarm;
       }
     }
   }

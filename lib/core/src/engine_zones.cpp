@@ -40,7 +40,9 @@ void engine::state::evaluate_zone(std::size_t zi, timestamp now, engine_output& 
   z.margin = compute_zone_margin(readings_of(z, now));
 
   const bool switch_active = z.switch_slot && inputs[*z.switch_slot].active;
-  const band_step step = step_band_and_alarm(z.condition, z.margin, switch_active, now);
+  const std::string* suppressor = suppressor_of(zi);
+  const band_step step = step_band_and_alarm(z.condition, z.margin, switch_active, now, suppressor != nullptr);
+  z.suppressed_by = step.suppressed ? *suppressor : std::string();
   if (step.event_due) emit_band_event(z, step, switch_active, now, out);
   // The trend first: the valve closes ahead of condensation by it.
   if (z.margin.margin_k) z.trend.add(now, *z.margin.margin_k);
@@ -79,8 +81,17 @@ void engine::state::emit_band_event(const zone_rt& z, const band_step& step, boo
           e.text("reason", m.unknown_reason);
         }
         e.alarm(z.condition.alarm.status());
+        // A tight/alarm transition while the zone's unit is in fault: logged, not annunciated.
+        if (!z.suppressed_by.empty()) e.text("suppressed_by", z.suppressed_by);
       },
       alarm_related);
+}
+
+const std::string* engine::state::suppressor_of(std::size_t zi) const {
+  for (std::size_t ui : units_of_zone[zi]) {
+    if (dehumidifiers[ui].fault.fault()) return &dehumidifiers[ui].cfg->id;
+  }
+  return nullptr;
 }
 
 // True when the valve moved (an event and a command went out).
@@ -136,7 +147,8 @@ void engine::state::publish_zone(zone_rt& z, timestamp now, engine_output& out, 
   const valve_position vp = z.valve ? z.valve->position() : valve_position::unset;
   const std::string& hold = z.valve ? z.valve->hold_reason() : z.published_hold;
   const bool significant = force || !z.published || current != z.published_band || alarm != z.published_alarm ||
-                           vp != z.published_valve || hold != z.published_hold;
+                           vp != z.published_valve || hold != z.published_hold ||
+                           z.suppressed_by != z.published_suppressed_by;
   const std::optional<double> minutes = m.margin_k ? z.trend.minutes_to_condensation(now) : std::nullopt;
   // minutes_to_condensation comes and goes with the trend: it waits for min_interval_s.
   const change_gate<7>::values values{m.dew_point_c, m.air_temp_c, m.rh_pct, m.surface_min_c,
@@ -160,7 +172,8 @@ void engine::state::publish_zone(zone_rt& z, timestamp now, engine_output& out, 
                           vp == valve_position::unset ? nullptr : valve_position_name(vp),
                           alarm,
                           minutes,
-                          hold.empty() ? nullptr : hold.c_str()};
+                          hold.empty() ? nullptr : hold.c_str(),
+                          z.suppressed_by.empty() ? nullptr : z.suppressed_by.c_str()};
   out.messages.push_back(
       {cfg.publish.prefix + "/zone/" + z.cfg->id + "/state", format_zone_state(v), true, message_class::state});
   z.gate.commit(values, now);
@@ -168,6 +181,7 @@ void engine::state::publish_zone(zone_rt& z, timestamp now, engine_output& out, 
   z.published_alarm = alarm;
   z.published_valve = vp;
   z.published_hold = hold;
+  z.published_suppressed_by = z.suppressed_by;
   z.published_source = source;
   z.published_minutes = minutes;
   z.published = true;

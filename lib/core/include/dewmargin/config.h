@@ -94,6 +94,11 @@ struct dehumidifier_config {
   std::string id;
   std::vector<std::string> zones;
   dew_point_request_config dew_point_request;
+  // The unit's own alarm (suppression by design of its zones' tight/alarm annunciation):
+  std::optional<input_config> fault;             // switch: active while the unit reports a fault
+  std::optional<input_config> supply_dew_point;  // its measured supply-air dew point (°C)
+  double fault_k = 2.0;                          // measured dew point this far above the request ...
+  double fault_after_s = 600.0;                  // ... for this long is a fault
 };
 
 struct tls_config {

@@ -25,10 +25,14 @@ struct zone_condition {
 struct band_step {
   band before = band::unknown;
   band after = band::unknown;
-  bool event_due = false;  // band, alarm condition or alarm state changed: a `band` event
+  bool event_due = false;   // band, alarm condition or alarm state changed: a `band` event
+  bool suppressed = false;  // a tight/alarm band kept from the alarm by design (its unit's fault)
 };
 
-band_step step_band_and_alarm(zone_condition& c, const zone_margin& m, bool switch_active, timestamp now);
+// `suppressed`: the zone's dehumidifier is in fault (dehumidifier_fault.h): a `tight` or
+// `alarm` band does not make the alarm active; `condensing` and `unknown` still do.
+band_step step_band_and_alarm(zone_condition& c, const zone_margin& m, bool switch_active, timestamp now,
+                              bool suppressed = false);
 
 // What the valve looks at besides the band: the zone's margin and its trend, its loop's
 // reset and measured supply.
