@@ -190,6 +190,12 @@ TEST(EnginePrevent, AUnitFaultIsOneAlarmAndSuppressesItsZonesAlarmBand) {
   }
   EXPECT_TRUE(marked);
 
+  // The unit's alarm is acknowledged like a zone's, by its id.
+  d.send("dm/cmd/ack", R"({"zone":"doas-1","by":"JK"})");
+  const auto ack = d.events("ack").back();
+  EXPECT_EQ(ack["dehumidifier"], "doas-1");
+  EXPECT_EQ(d.last_json("dm/dehumidifier/doas-1/state")["alarm"]["acknowledged"], true);
+
   // Condensing always annunciates.
   d.send("b/z1/wet", "wet");
   d.advance(1);

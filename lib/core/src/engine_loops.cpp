@@ -131,7 +131,18 @@ void engine::state::tick_dehumidifiers(timestamp now, engine_output& out) {
       d.published_request_c = r.request_c;
     }
     judge_unit_fault(d, now, out);
-    publish_dehumidifier(d, now, out, moved);
+    bool shelving_ended = false;
+    if (d.alarm.expire_shelving(now)) {
+      shelving_ended = true;
+      events.emit(
+          out, now, d.subject(), event_kind::unshelve,
+          [&](event_json& e) {
+            e.text("from", "shelved").text("to", "unshelved").null("by").text("reason", "shelving expired");
+            e.alarm(d.alarm.status());
+          },
+          true);
+    }
+    publish_dehumidifier(d, now, out, moved || shelving_ended);
   }
 }
 

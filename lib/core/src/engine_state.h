@@ -167,8 +167,10 @@ struct engine::state {
 
   // engine_commands.cpp
   void on_command(const std::string& topic, std::string_view payload, timestamp now, engine_output& out);
-  void emit_command_event(const zone_rt& z, const operator_command& c, const alarm_status& before, timestamp now,
-                          engine_output& out);
+  void emit_command_event(const event_subject& subject, const alarm_status& after, const operator_command& c,
+                          const alarm_status& before, timestamp now, engine_output& out);
+  void on_unit_command(dehumidifier_rt& d, const std::string& topic, const std::string& verb, const operator_command& c,
+                       timestamp now, engine_output& out);
   void reject(const std::string& topic, const std::string& verb, const std::string& zone, rejection_kind kind,
               const std::string& reason, timestamp now, engine_output& out);
   void emit_rejected(const std::string& topic, const std::string& verb, const std::string& zone,

@@ -95,8 +95,11 @@ namespace {
 // onset counts for every incident active at its time.
 std::map<std::string, int> alarms_raised_while(const simulation& sim) {
   std::map<std::string, int> by;
-  for (const auto& z : sim.watch().zones()) {
-    for (double t_s : z.alarm_onsets_s) {
+  std::vector<std::vector<double>> onsets;
+  for (const auto& z : sim.watch().zones()) onsets.push_back(z.alarm_onsets_s);
+  onsets.push_back(sim.watch().tally().unit_alarm_onsets_s);  // the units' own alarms count too
+  for (const auto& list : onsets) {
+    for (double t_s : list) {
       std::set<std::string> kinds;
       for (const incident& i : sim.script().incidents) {
         if (i.active_at(t_s)) kinds.insert(incident_kind_name(i.kind));
@@ -113,7 +116,8 @@ std::map<std::string, int> alarms_raised_while(const simulation& sim) {
 std::string service_text(const simulation& sim) {
   std::ostringstream os;
   const auto& t = sim.watch().tally();
-  os << "service (its events on MQTT): alarms raised " << t.alarms_raised << ", acknowledged " << t.acknowledged;
+  os << "service (its events on MQTT): alarms raised " << t.alarms_raised << " by zones and "
+     << t.unit_alarm_onsets_s.size() << " by dehumidifiers, acknowledged " << t.acknowledged;
   if (sim.options().ack_after_s > 0) {
     os << " (by '" << sim.options().operator_name << "', the simulated operator, "
        << fixed(sim.options().ack_after_s / 60.0, 0) << " min after each)";
@@ -239,6 +243,7 @@ std::string summary_json(const simulation& sim, const pace_report* pace) {
                     {"band_events", t.band_events},
                     {"alarms_by_zone", t.alarms_by_zone},
                     {"bands_entered", t.bands_entered},
+                    {"unit_alarms_raised", t.unit_alarm_onsets_s.size()},
                     {"alarms_raised_while", alarms_raised_while(sim)}};
     const auto& c = sim.commands();
     nlohmann::json sp = nlohmann::json::object();
