@@ -3,10 +3,12 @@
 namespace dewmargin::daemon {
 
 bool event_log_budget::admit(const std::string& kind) {
-  if (!throttled_kind(kind)) return true;
+  const bool quiet = quiet_kind(kind);
+  if (!throttled_kind(kind) && !quiet) return true;
   tally& t = events_[kind];
+  t.quiet = quiet;
   ++t.seen;
-  if (t.logged >= limits_.lines_per_kind) return false;
+  if (throttled_kind(kind) && t.logged >= limits_.lines_per_kind) return false;
   ++t.logged;
   return true;
 }
@@ -20,13 +22,14 @@ std::optional<std::string> event_log_budget::summary_due(clock::time_point now) 
   const auto seconds = std::chrono::duration_cast<std::chrono::seconds>(now - window_start_).count();
   window_start_ = now;
   bool held_back = false;
-  for (const auto& [kind, t] : events_) held_back = held_back || t.seen > t.logged;
+  for (const auto& [kind, t] : events_) held_back = held_back || t.seen > t.logged || t.quiet;
   std::string text;
   if (held_back || !counted_.empty()) {
     text = "in the last " + std::to_string(seconds) + " s:";
     const char* sep = " ";
     for (const auto& [kind, t] : events_) {
-      text += sep + std::to_string(t.seen) + " " + kind + " events (" + std::to_string(t.logged) + " logged)";
+      text += sep + std::to_string(t.seen) + " " + kind + " events (" + std::to_string(t.logged) +
+              (t.quiet ? " logged at debug)" : " logged)");
       sep = ", ";
     }
     for (const auto& [what, n] : counted_) {

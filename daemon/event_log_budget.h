@@ -1,9 +1,12 @@
 #pragma once
-// Which event lines reach the log, so that a flood of bad inputs or rejected commands cannot
-// fill the journal: alarm-related and service events are always written; `input` and
-// `rejected` events get a budget of lines per kind and window, the rest only counted. Once a
-// window has passed, a summary line gives the counts by kind with what was held back, and the
-// drops and contained faults the service counted meanwhile. Time is a parameter (testable).
+// Which event lines reach the log, and at what level, so that a flood of bad inputs or
+// rejected commands, or a day of setpoint moves, cannot fill the journal: alarm-related
+// events (band, ack, shelve, unshelve, valve, dehumidifier alarm) and service events are
+// written at info; `setpoint`, `dehumidify` and `input` events at debug (quiet kinds);
+// `input` and `rejected` events get a budget of lines per kind and window, the rest only
+// counted. Once a window has passed, a summary line at info gives the counts by kind with
+// what was held back or written at debug, and the drops and contained faults the service
+// counted meanwhile. Time is a parameter (testable).
 #include <chrono>
 #include <cstdint>
 #include <map>
@@ -34,11 +37,16 @@ class event_log_budget {
   std::optional<std::string> summary_due(clock::time_point now);
 
   [[nodiscard]] static bool throttled_kind(const std::string& kind) { return kind == "input" || kind == "rejected"; }
+  // Written at debug level, counted for the summary.
+  [[nodiscard]] static bool quiet_kind(const std::string& kind) {
+    return kind == "setpoint" || kind == "dehumidify" || kind == "input";
+  }
 
  private:
   struct tally {
     std::uint64_t seen = 0;
     std::uint64_t logged = 0;
+    bool quiet = false;
   };
   limits limits_;
   clock::time_point window_start_;

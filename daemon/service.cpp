@@ -294,8 +294,10 @@ class service {
   void dispatch() {
     for (const auto& e : batch_.events) {
       if (!log_budget_.admit(e.kind)) continue;
-      const bool warn = e.kind == "rejected";
-      log_->log(warn ? spdlog::level::warn : spdlog::level::info, "{}", describe_event(e));
+      const spdlog::level::level_enum level = e.kind == "rejected"                   ? spdlog::level::warn
+                                              : event_log_budget::quiet_kind(e.kind) ? spdlog::level::debug
+                                                                                     : spdlog::level::info;
+      if (log_->should_log(level)) log_->log(level, "{}", describe_event(e));
     }
     if (live_) {
       for (const auto& m : batch_.messages) {

@@ -96,10 +96,26 @@ TEST(MessageContainment, ReportsQuoteTopicAndErrorAsSafeText) {
 
 TEST(EventLogBudget, AlarmRelatedEventsAreAlwaysWritten) {
   event_log_budget b({60s, 5}, clock::time_point{});
-  for (const char* kind : {"band", "ack", "shelve", "unshelve", "valve", "setpoint", "dehumidify", "service"}) {
+  for (const char* kind : {"band", "ack", "shelve", "unshelve", "valve", "service"}) {
+    EXPECT_FALSE(event_log_budget::quiet_kind(kind)) << kind << " is written at info";
     for (int i = 0; i < 100; ++i) EXPECT_TRUE(b.admit(kind)) << kind;
   }
   EXPECT_FALSE(b.summary_due(clock::time_point{} + 61s)) << "nothing held back, nothing counted";
+}
+
+TEST(EventLogBudget, SetpointDehumidifyAndInputGoToDebugWithAnInfoSummary) {
+  const auto t0 = clock::time_point{} + 1h;
+  event_log_budget b({60s, 5}, t0);
+  for (const char* kind : {"setpoint", "dehumidify", "input"}) {
+    EXPECT_TRUE(event_log_budget::quiet_kind(kind)) << kind;
+  }
+  for (int i = 0; i < 40; ++i) EXPECT_TRUE(b.admit("setpoint")) << "written, at debug";
+  for (int i = 0; i < 3; ++i) EXPECT_TRUE(b.admit("dehumidify"));
+  const auto summary = b.summary_due(t0 + 60s);
+  ASSERT_TRUE(summary);
+  EXPECT_EQ(*summary,
+            "in the last 60 s: 3 dehumidify events (3 logged at debug), 40 setpoint events (40 logged at debug)");
+  EXPECT_FALSE(b.summary_due(t0 + 121s)) << "a quiet minute says nothing";
 }
 
 TEST(EventLogBudget, InputAndRejectedGetFiveLinesAMinuteAndASummaryWithTheCounts) {
@@ -117,11 +133,12 @@ TEST(EventLogBudget, InputAndRejectedGetFiveLinesAMinuteAndASummaryWithTheCounts
   const auto summary = b.summary_due(t0 + 60s);
   ASSERT_TRUE(summary);
   EXPECT_EQ(*summary,
-            "in the last 60 s: 5000 input events (5 logged), 1000 rejected events (5 logged), "
+            "in the last 60 s: 5000 input events (5 logged at debug), 1000 rejected events (5 logged), "
             "7 inbound messages dropped (queue full)");
   // A new window: the budget is there again, and a quiet minute says nothing.
   EXPECT_TRUE(b.admit("input"));
-  EXPECT_FALSE(b.summary_due(t0 + 121s));
+  EXPECT_EQ(b.summary_due(t0 + 121s), "in the last 61 s: 1 input events (1 logged at debug)");
+  EXPECT_FALSE(b.summary_due(t0 + 182s));
 }
 
 TEST(ProblemReporter, CountersInAMessageDoNotMakeItANewProblem) {

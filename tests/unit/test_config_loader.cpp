@@ -533,6 +533,64 @@ std::string name_of_case(const ::testing::TestParamInfo<text_case>& case_info) {
 
 INSTANTIATE_TEST_SUITE_P(Cases, ConfigRule, ::testing::ValuesIn(k_rule_cases), name_of_case);
 
+TEST(ConfigLoader, PreventiveRulesTakeTheirDefaultsAndTheirKeys) {
+  // Issue 10: valve.close_ahead_min 5, valve.open_margin_k = the zone's margin_alarm_k,
+  // publish.setpoint_event_k 0.5, dew_point_request step_s 120, respond_k 0.3, max_step_k 1.0,
+  // trim_k 0.1.
+  const std::string zone_with_valve =
+      "zones:\n"
+      "  - {id: z1, loop: la, air_temp: {topic: b/t}, humidity: {topic: b/h}, valve: {topic: b/v}}\n";
+  const std::string doas =
+      "dehumidifiers:\n"
+      "  - {id: d1, zones: [z1], dew_point_request: {topic: p/dp, min_c: 8, max_c: 14}}\n";
+  const auto plain = load_config_text(k_head + k_loop + zone_with_valve + doas, "t.yaml");
+  ASSERT_TRUE(plain.ok()) << all_errors(plain);
+  const site_config& d = *plain.config;
+  EXPECT_EQ(d.publish.setpoint_event_k, 0.5);
+  EXPECT_EQ(d.zones[0].valve->close_ahead_min, 5.0);
+  EXPECT_FALSE(d.zones[0].valve->open_margin_k.has_value()) << "the zone's margin_alarm_k";
+  const dew_point_request_config& q = d.dehumidifiers[0].dew_point_request;
+  EXPECT_EQ(q.step_s, 120.0);
+  EXPECT_EQ(q.respond_k, 0.3);
+  EXPECT_EQ(q.max_step_k, 1.0);
+  EXPECT_EQ(q.trim_k, 0.1);
+  EXPECT_FALSE(d.dehumidifiers[0].fault.has_value());
+  EXPECT_FALSE(d.dehumidifiers[0].supply_dew_point.has_value());
+  EXPECT_EQ(d.dehumidifiers[0].fault_k, 2.0);
+  EXPECT_EQ(d.dehumidifiers[0].fault_after_s, 600.0);
+
+  const std::string zone_set =
+      "zones:\n"
+      "  - {id: z1, loop: la, air_temp: {topic: b/t}, humidity: {topic: b/h},\n"
+      "     valve: {topic: b/v, close_ahead_min: 8, open_margin_k: 1.5}}\n";
+  const std::string doas_set =
+      "dehumidifiers:\n"
+      "  - {id: d1, zones: [z1], dew_point_request: {topic: p/dp, min_c: 8, max_c: 14, step_s: 300,\n"
+      "     respond_k: 0.2, max_step_k: 0.6, trim_k: 0.05},\n"
+      "     fault: {topic: p/doas-fault, active: [tripped]}, supply_dew_point: {topic: p/doas-dp},\n"
+      "     fault_k: 3, fault_after_s: 900}\n";
+  const auto set =
+      load_config_text(k_head + "publish: {setpoint_event_k: 0.2}\n" + k_loop + zone_set + doas_set, "t.yaml");
+  ASSERT_TRUE(set.ok()) << all_errors(set);
+  const site_config& c = *set.config;
+  EXPECT_EQ(c.publish.setpoint_event_k, 0.2);
+  EXPECT_EQ(c.zones[0].valve->close_ahead_min, 8.0);
+  EXPECT_EQ(c.zones[0].valve->open_margin_k, 1.5);
+  const dew_point_request_config& r = c.dehumidifiers[0].dew_point_request;
+  EXPECT_EQ(r.step_s, 300.0);
+  EXPECT_EQ(r.respond_k, 0.2);
+  EXPECT_EQ(r.max_step_k, 0.6);
+  EXPECT_EQ(r.trim_k, 0.05);
+  const dehumidifier_config& u = c.dehumidifiers[0];
+  ASSERT_TRUE(u.fault.has_value());
+  EXPECT_EQ(u.fault->topic, "p/doas-fault");
+  EXPECT_EQ(u.fault->active, std::vector<std::string>{"tripped"});
+  ASSERT_TRUE(u.supply_dew_point.has_value());
+  EXPECT_EQ(u.supply_dew_point->topic, "p/doas-dp");
+  EXPECT_EQ(u.fault_k, 3.0);
+  EXPECT_EQ(u.fault_after_s, 900.0);
+}
+
 TEST(ConfigLoader, ClockDefaultsToWallAndReadsEventTime) {
   const auto wall = load_config_text(k_head + k_loop + k_zone, "t.yaml");
   ASSERT_TRUE(wall.ok()) << all_errors(wall);

@@ -225,8 +225,61 @@ TEST(Engine, SetpointFallsAtLimitedRateAndRisesAtOnce) {
   const auto loop = d.last_json("dm/loop/loop-a/state");
   EXPECT_NEAR(loop["setpoint_c"].get<double>(), 20.0 - 0.2 * 65 / 60.0, 0.02);
   EXPECT_EQ(loop["limited"], "rate");
-  // Setpoint events every 0.1 K.
-  EXPECT_GE(d.events("setpoint").size(), 2u);
+  // 0.22 K of fall is not yet a setpoint event; the retained state shows every 0.1 K.
+  EXPECT_TRUE(d.events("setpoint").empty());
+  EXPECT_GE(d.on_topic("dm/loop/loop-a/state").size(), 3u);
+  d.advance(120);  // 0.5 K fallen since the start
+  d.readings(24, 50, 17, 16);
+  ASSERT_EQ(d.events("setpoint").size(), 1u);
+  EXPECT_EQ(d.events("setpoint").back()["governing_zone"], "z1");
+  EXPECT_EQ(d.events("setpoint").back()["from"], 20.0);
+}
+
+// Rule 5 (issue 10): a setpoint event once the setpoint has moved publish.setpoint_event_k
+// (default 0.5 K) since the last event, or when its limit or governing zone changes; the
+// retained state still follows every 0.1 K at once.
+TEST(Engine, SetpointEventsOnHalfAKelvinOrANewLimitOrGoverningZone) {
+  engine_driver d(small_site());
+  for (int i = 0; i < 30; ++i) {  // from 20 °C down to 15 °C at 0.2 K/min
+    d.readings(24, 50, 17, 16);
+    d.advance(60);
+  }
+  const auto ev = d.events("setpoint");
+  ASSERT_FALSE(ev.empty());
+  // 5 K of fall: ten events of 0.5 K, one for the first (rate-limited) move from max, one on
+  // reaching min.
+  EXPECT_GE(ev.size(), 10u);
+  EXPECT_LE(ev.size(), 12u);
+  std::string limit_before = "max";
+  for (const auto& e : ev) {
+    const double moved_k = std::fabs(e["to"].get<double>() - e["from"].get<double>());
+    const bool limit_changed = e["limited"] != limit_before && !(e["limited"] == "rate" && limit_before == "none") &&
+                               !(e["limited"] == "none" && limit_before == "rate");
+    EXPECT_TRUE(moved_k >= 0.5 - 1e-9 || limit_changed || e == ev.front()) << e.dump();
+    limit_before = e["limited"];
+  }
+  EXPECT_EQ(ev.back()["limited"], "min");
+  EXPECT_EQ(d.last_json("dm/loop/loop-a/state")["setpoint_c"], 15.0);
+  // More than 40 retained states: the state follows every 0.1 K.
+  EXPECT_GE(d.on_topic("dm/loop/loop-a/state").size(), 40u);
+
+  // A new governing zone: z2 at 55 % has a dew point of 14.4 °C, above z1's 12.9 °C.
+  const std::size_t before = d.events("setpoint").size();
+  d.send("b/z2/rh", "55");
+  d.advance(1);
+  ASSERT_GT(d.events("setpoint").size(), before);
+  EXPECT_EQ(d.events("setpoint").back()["governing_zone"], "z2");
+}
+
+TEST(Engine, SetpointEventThresholdIsConfigurable) {
+  site_config cfg = small_site();
+  cfg.publish.setpoint_event_k = 0.1;
+  engine_driver d(cfg);
+  for (int i = 0; i < 30; ++i) {
+    d.readings(24, 50, 17, 16);
+    d.advance(60);
+  }
+  EXPECT_GE(d.events("setpoint").size(), 49u) << "every 0.1 K, as before issue 10";
 }
 
 TEST(Engine, SetpointRisesAtOnceWhenAZoneGetsMoreHumid) {
@@ -310,13 +363,15 @@ TEST(Engine, DehumidifierRequestFollowsColdestReference) {
   ASSERT_FALSE(ev.empty());
   EXPECT_EQ(ev.back()["to"], 13.0);
   EXPECT_EQ(d.last_payload("plant/doas/dp"), "13.00");
-  // A move below 0.1 K is not republished; 0.1 K is.
-  d.send("plant/a/supply", "16.05");
-  d.advance(1);
+  // A warmer reference does not raise the request by itself: the trim does, by 0.1 K a step
+  // (120 s) while no zone asks for drier air, up to the feed-forward.
+  d.send("plant/a/supply", "16.3");
+  d.advance(60);
   EXPECT_EQ(d.events("dehumidify").size(), ev.size());
-  d.send("plant/a/supply", "16.1");
-  d.advance(1);
-  EXPECT_EQ(d.events("dehumidify").size(), ev.size() + 1);
+  d.advance(60);
+  ASSERT_EQ(d.events("dehumidify").size(), ev.size() + 1);
+  EXPECT_EQ(d.events("dehumidify").back()["to"], 13.1);
+  EXPECT_EQ(d.events("dehumidify").back()["reason"], "trim-and-respond: no requests: +0.10 K");
   // Clamped to its range.
   d.send("plant/a/supply", "10");
   d.send("b/z1/surface", "10");

@@ -65,10 +65,11 @@ loop_state_view full_loop() {
 }
 
 TEST(ZoneStateJson, HasExactlyTheKeysOfTheDesign) {
-  // design.md, plus minutes_to_condensation.
+  // design.md, plus minutes_to_condensation, valve_hold (issue 10, rule 2) and suppressed_by (rule 4).
   const std::set<std::string> expected = {
       "site",          "zone",     "ts",       "band",          "dew_point_c", "air_temp_c", "rh_pct",
-      "surface_min_c", "supply_c", "margin_k", "margin_source", "valve",       "alarm",      "minutes_to_condensation"};
+      "surface_min_c", "supply_c", "margin_k", "margin_source", "valve",       "alarm",      "minutes_to_condensation",
+      "valve_hold",    "suppressed_by"};
   const auto j = nlohmann::json::parse(format_zone_state(full_zone()));
   EXPECT_EQ(keys_of(j), expected);
   EXPECT_EQ(keys_of(j["alarm"]), (std::set<std::string>{"active", "acknowledged", "shelved_until"}));

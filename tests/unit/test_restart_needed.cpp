@@ -134,6 +134,16 @@ TEST(RestartNeeded, ListsInputTopicsOnceInConfigOrder) {
   s.zones[0].window_contact = topic_input("b/z1/window");
   EXPECT_EQ(input_topics(s), (std::vector<std::string>{"plant/a/supply", "plant/a/return", "b/z1/temp", "b/z1/rh",
                                                        "b/z1/wet", "b/z1/window"}));
+  // A dehumidifier's own inputs (issue 10): a new one needs a restart like any input topic.
+  dehumidifier_config d;
+  d.id = "doas";
+  d.fault = topic_input("plant/doas/fault");
+  d.supply_dew_point = topic_input("plant/doas/supply-dp");
+  s.dehumidifiers.push_back(d);
+  const std::vector<std::string> topics = input_topics(s);
+  ASSERT_EQ(topics.size(), 8u);
+  EXPECT_EQ(topics[6], "plant/doas/fault");
+  EXPECT_EQ(topics[7], "plant/doas/supply-dp");
 }
 
 }  // namespace

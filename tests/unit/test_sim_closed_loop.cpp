@@ -18,6 +18,9 @@ struct day_case {
   const char* scenario;
   double baseline_at_least_zone_min;
   double supervised_at_most_zone_min;
+  // The clinic's storm is weathered without an alarm since the service prevents (issue 10:
+  // the dehumidifier's trim-and-respond dries the air before a zone reaches `alarm`).
+  bool alarms_expected;
 };
 
 site_config config_at(const std::string& relative) {
@@ -45,8 +48,8 @@ void show(const simulation& sim) {
 }
 
 TEST(SimClosedLoop, SupervisionKeepsSurfacesDryWhereTheBaselineCondenses) {
-  for (const day_case& c : {day_case{"config/demo.yaml", "config/scenarios/short.yaml", 200.0, 10.0},
-                            day_case{"config/clinic.yaml", "config/scenarios/clinic-storm.yaml", 100.0, 5.0}}) {
+  for (const day_case& c : {day_case{"config/demo.yaml", "config/scenarios/short.yaml", 200.0, 1.0, true},
+                            day_case{"config/clinic.yaml", "config/scenarios/clinic-storm.yaml", 100.0, 1.0, false}}) {
     SCOPED_TRACE(c.scenario);
     auto baseline = make(c, false);
     std::vector<outbound> ignored;
@@ -61,7 +64,9 @@ TEST(SimClosedLoop, SupervisionKeepsSurfacesDryWhereTheBaselineCondenses) {
     EXPECT_GE(baseline->truth().total_condensing_min(), c.baseline_at_least_zone_min);
     EXPECT_LE(supervised->truth().total_condensing_min(), c.supervised_at_most_zone_min);
     EXPECT_LE(supervised->truth().total_condensing_min(), 0.05 * baseline->truth().total_condensing_min());
-    EXPECT_GT(supervised->watch().tally().alarms_raised, 0);
+    if (c.alarms_expected) {
+      EXPECT_GT(supervised->watch().tally().alarms_raised, 0);
+    }
     EXPECT_EQ(supervised->watch().tally().acknowledged, supervised->watch().tally().acks_sent);
     EXPECT_EQ(supervised->commands().bad_commands, 0) << supervised->commands().last_bad_command;
     // The verdict agrees with the ground truth it is made from.

@@ -146,6 +146,8 @@ TEST(SimSensorFeed, WallClockConfigWithoutFieldsGetsBareNumbers) {
   sim->begin(out);
   ASSERT_FALSE(out.empty());
   for (const auto& m : out) {
+    // The outdoor-air unit's own sensors take their `field` from the building file, not the config.
+    if (m.topic.find("doas-roof/") != std::string::npos) continue;
     if (m.topic.find("wet-switch") != std::string::npos || m.topic.find("entrance-door") != std::string::npos) {
       EXPECT_TRUE(m.payload == "dry" || m.payload == "closed") << m.topic << " " << m.payload;
     } else {

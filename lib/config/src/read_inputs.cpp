@@ -219,7 +219,8 @@ std::optional<std::string> read_output_topic(const map_reader& m, const std::str
 
 std::optional<valve_config> read_valve(const YAML::Node& node, source_mark at, const std::string& owner, reading& r) {
   if (!expect_map(node, "valve", " like { topic: ... }", at, r.diag)) return std::nullopt;
-  const map_reader m(node, owner, {"topic", "open", "closed", "reopen_after_s"}, r.diag);
+  const map_reader m(node, owner, {"topic", "open", "closed", "reopen_after_s", "close_ahead_min", "open_margin_k"},
+                     r.diag);
   valve_config v;
   bool ok = true;
   if (auto topic = read_output_topic(m, owner, r)) {
@@ -246,6 +247,15 @@ std::optional<valve_config> read_valve(const YAML::Node& node, source_mark at, c
     ok = false;
   }
   if (!m.number_into("reopen_after_s", number_rule::non_negative, v.reopen_after_s)) ok = false;
+  if (!m.number_into("close_ahead_min", number_rule::non_negative, v.close_ahead_min)) ok = false;
+  if (m.has("open_margin_k")) {
+    double open_margin_k = 0.0;
+    if (m.number_into("open_margin_k", number_rule::non_negative, open_margin_k)) {
+      v.open_margin_k = open_margin_k;
+    } else {
+      ok = false;
+    }
+  }
   if (!ok) return std::nullopt;
   return v;
 }

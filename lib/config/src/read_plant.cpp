@@ -234,7 +234,9 @@ void read_dehumidifiers(const YAML::Node& node, source_mark at, reading& r) {
                    "each dehumidifier must be a map with id, zones and dew_point_request, got " + describe(item));
       continue;
     }
-    const map_reader m(item, entity_context(item, "dehumidifier", index), {"id", "zones", "dew_point_request"}, r.diag);
+    const map_reader m(item, entity_context(item, "dehumidifier", index),
+                       {"id", "zones", "dew_point_request", "fault", "supply_dew_point", "fault_k", "fault_after_s"},
+                       r.diag);
     dehumidifier_config d;
     if (auto id = read_id(m, "dehumidifier", r.index.dehumidifier_ids, r.diag)) d.id = *id;
     if (m.require("zones")) {
@@ -260,12 +262,22 @@ void read_dehumidifiers(const YAML::Node& node, source_mark at, reading& r) {
       const std::string owner = m.context() + " dew_point_request";
       if (expect_map(req, "dew_point_request", " like { topic: ..., min_c: ..., max_c: ... }",
                      m.value_mark("dew_point_request"), r.diag)) {
-        const map_reader rm(req, owner, {"topic", "min_c", "max_c", "offset_k"}, r.diag);
-        if (auto topic = read_output_topic(rm, owner, r)) d.dew_point_request.topic = *topic;
-        read_range_c(rm, d.dew_point_request.min_c, d.dew_point_request.max_c);
-        rm.number_into("offset_k", number_rule::non_negative, d.dew_point_request.offset_k);
+        const map_reader rm(
+            req, owner, {"topic", "min_c", "max_c", "offset_k", "step_s", "respond_k", "max_step_k", "trim_k"}, r.diag);
+        dew_point_request_config& q = d.dew_point_request;
+        if (auto topic = read_output_topic(rm, owner, r)) q.topic = *topic;
+        read_range_c(rm, q.min_c, q.max_c);
+        rm.number_into("offset_k", number_rule::non_negative, q.offset_k);
+        rm.number_into("step_s", number_rule::positive, q.step_s);
+        rm.number_into("respond_k", number_rule::non_negative, q.respond_k);
+        rm.number_into("max_step_k", number_rule::non_negative, q.max_step_k);
+        rm.number_into("trim_k", number_rule::non_negative, q.trim_k);
       }
     }
+    read_optional_input(m, "fault", input_kind::binary, d.fault, r);
+    read_optional_input(m, "supply_dew_point", input_kind::temperature, d.supply_dew_point, r);
+    m.number_into("fault_k", number_rule::non_negative, d.fault_k);
+    m.number_into("fault_after_s", number_rule::non_negative, d.fault_after_s);
     r.config.dehumidifiers.push_back(std::move(d));
   }
 }

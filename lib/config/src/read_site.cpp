@@ -107,7 +107,8 @@ void read_broker(const YAML::Node& node, reading& r) {
 }
 
 void read_storage(const YAML::Node& node, reading& r) {
-  const map_reader m(node, "storage", {"path", "keep_events_days", "keep_samples_days", "keep_minute_samples_days"}, r.diag);
+  const map_reader m(node, "storage", {"path", "keep_events_days", "keep_samples_days", "keep_minute_samples_days"},
+                     r.diag);
   storage_config& s = r.config.storage;
   non_empty_text(m, "path", presence::required, s.path);
   m.number_into("keep_events_days", number_rule::positive, s.keep_events_days);
@@ -116,7 +117,7 @@ void read_storage(const YAML::Node& node, reading& r) {
 }
 
 void read_publish(const YAML::Node& node, reading& r) {
-  const map_reader m(node, "publish", {"prefix", "min_interval_s"}, r.diag);
+  const map_reader m(node, "publish", {"prefix", "min_interval_s", "setpoint_event_k"}, r.diag);
   publish_config& p = r.config.publish;
   if (m.has("prefix")) r.index.prefix.reset();  // set again below only when valid: no checks against a bad one
   if (auto prefix = m.text("prefix")) {
@@ -133,6 +134,7 @@ void read_publish(const YAML::Node& node, reading& r) {
     }
   }
   m.number_into("min_interval_s", number_rule::non_negative, p.min_interval_s);
+  m.number_into("setpoint_event_k", number_rule::non_negative, p.setpoint_event_k);
 }
 
 void read_defaults(const YAML::Node& node, reading& r) {

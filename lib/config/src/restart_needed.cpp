@@ -61,6 +61,10 @@ std::vector<std::string> input_topics(const site_config& c) {
     if (z.condensation_switch) add_topic(*z.condensation_switch, topics);
     if (z.window_contact) add_topic(*z.window_contact, topics);
   }
+  for (const auto& d : c.dehumidifiers) {
+    if (d.fault) add_topic(*d.fault, topics);
+    if (d.supply_dew_point) add_topic(*d.supply_dew_point, topics);
+  }
   return topics;
 }
 

@@ -22,11 +22,23 @@ void engine::state::build() {
   }
   zones.reserve(cfg.zones.size());
   for (std::size_t i = 0; i < cfg.zones.size(); ++i) build_zone(i, loop_index);
-  for (const auto& dc : cfg.dehumidifiers) {
-    dehumidifier_rt d{&dc, {}, std::nullopt};
+  units_of_zone.assign(zones.size(), {});
+  for (std::size_t ui = 0; ui < cfg.dehumidifiers.size(); ++ui) {
+    const dehumidifier_config& dc = cfg.dehumidifiers[ui];
+    dehumidifier_rt d(&dc);
     for (const auto& zid : dc.zones) {
       const auto it = zone_index.find(zid);
-      if (it != zone_index.end()) d.zones.push_back(it->second);
+      if (it == zone_index.end()) continue;
+      d.zones.push_back(it->second);
+      units_of_zone[it->second].push_back(ui);
+    }
+    input_owner owner;
+    owner.is_dehumidifier = true;
+    owner.index = ui;
+    const double stale_s = cfg.defaults.stale_after_s;
+    if (dc.fault) d.fault_slot = inputs.add(input_kind::unit_fault, *dc.fault, owner, stale_s);
+    if (dc.supply_dew_point) {
+      d.supply_dew_point_slot = inputs.add(input_kind::supply_dew_point, *dc.supply_dew_point, owner, stale_s);
     }
     dehumidifiers.push_back(std::move(d));
   }
@@ -48,7 +60,11 @@ void engine::state::build_zone(std::size_t i, const std::unordered_map<std::stri
     z.switch_slot = inputs.add(input_kind::condensation_switch, *zc.condensation_switch, owner, stale_s);
   }
   if (zc.window_contact) z.window_slot = inputs.add(input_kind::window_contact, *zc.window_contact, owner, stale_s);
-  if (zc.valve) z.valve.emplace(zc.valve->reopen_after_s);
+  if (zc.valve) {
+    const valve_config& v = *zc.valve;
+    z.valve.emplace(valve_rules{v.reopen_after_s, v.close_ahead_min,
+                                v.open_margin_k.value_or(zc.thresholds.margin_alarm_k), zc.thresholds.margin_alarm_k});
+  }
   if (li != loop_index.end()) loops[loop].zones.push_back(i);
   zone_index[zc.id] = i;
 }

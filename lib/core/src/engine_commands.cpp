@@ -29,6 +29,12 @@ void engine::state::on_command(const std::string& topic, std::string_view payloa
   const operator_command& c = parsed.value();
   const auto it = zone_index.find(c.zone);
   if (it == zone_index.end()) {
+    // A dehumidifier's own alarm is acknowledged and shelved like a zone's, by its id.
+    for (dehumidifier_rt& d : dehumidifiers) {
+      if (d.cfg->id == c.zone && (d.fault_slot || d.supply_dew_point_slot)) {
+        return on_unit_command(d, topic, verb, c, now, out);
+      }
+    }
     return reject(topic, verb, c.zone, rejection_kind::unknown_zone, "unknown zone '" + c.zone + "'", now, out);
   }
   zone_rt& z = zones[it->second];
@@ -47,19 +53,40 @@ void engine::state::on_command(const std::string& topic, std::string_view payloa
   }
   if (!why.empty()) return reject(topic, verb, c.zone, rejection_kind::refused, why, now, out);
   ++counters.commands;
-  emit_command_event(z, c, before, now, out);
+  emit_command_event(z.subject(), z.condition.alarm.status(), c, before, now, out);
   emit_zone_snapshot(out, z, now);
   publish_zone(z, now, out, false);
 }
 
-void engine::state::emit_command_event(const zone_rt& z, const operator_command& c, const alarm_status& before,
-                                       timestamp now, engine_output& out) {
+void engine::state::on_unit_command(dehumidifier_rt& d, const std::string& topic, const std::string& verb,
+                                    const operator_command& c, timestamp now, engine_output& out) {
+  const alarm_status before = d.alarm.status();
+  std::string why;
+  switch (c.verb) {
+    case command_verb::ack:
+      why = d.alarm.acknowledge();
+      break;
+    case command_verb::shelve:
+      why = d.alarm.shelve(c.minutes, now);
+      break;
+    case command_verb::unshelve:
+      why = d.alarm.unshelve();
+      break;
+  }
+  if (!why.empty()) return reject(topic, verb, c.zone, rejection_kind::refused, why, now, out);
+  ++counters.commands;
+  emit_command_event(d.subject(), d.alarm.status(), c, before, now, out);
+  publish_dehumidifier(d, now, out, true);
+}
+
+void engine::state::emit_command_event(const event_subject& subject, const alarm_status& after,
+                                       const operator_command& c, const alarm_status& before, timestamp now,
+                                       engine_output& out) {
   const event_kind kind = c.verb == command_verb::ack      ? event_kind::ack
                           : c.verb == command_verb::shelve ? event_kind::shelve
                                                            : event_kind::unshelve;
-  const alarm_status& after = z.condition.alarm.status();
   events.emit(
-      out, now, z.subject(), kind,
+      out, now, subject, kind,
       [&](event_json& e) {
         switch (c.verb) {
           case command_verb::ack:

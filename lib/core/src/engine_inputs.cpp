@@ -11,6 +11,7 @@ void engine::state::on_reading(const std::vector<std::size_t>& ids, std::string_
     inputs.apply(id, payload, reading_ts, now, cfg.plausibility, changes);
     emit_input_changes(changes, now, out);
     const input_slot& s = inputs[id];
+    if (s.owner.is_dehumidifier) continue;  // judged on the tick
     if (!s.owner.is_loop) {
       evaluate_zone(s.owner.index, now, out);
       continue;
@@ -37,7 +38,9 @@ void engine::state::emit_input_changes(const std::vector<input_transition>& chan
                                        engine_output& out) {
   for (const input_transition& t : changes) {
     const input_slot& s = inputs[t.slot];
-    const event_subject subject = s.owner.is_loop ? loops[s.owner.index].subject() : zones[s.owner.index].subject();
+    const event_subject subject = s.owner.is_dehumidifier ? dehumidifiers[s.owner.index].subject()
+                                  : s.owner.is_loop       ? loops[s.owner.index].subject()
+                                                          : zones[s.owner.index].subject();
     events.emit(out, now, subject, event_kind::input, [&](event_json& e) {
       e.text("from", input_status_name(t.from)).text("to", input_status_name(t.to)).text("topic", s.cfg->topic);
       if (!s.cfg->field.empty()) e.text("field", s.cfg->field);

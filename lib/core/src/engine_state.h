@@ -13,6 +13,8 @@
 
 #include "dewmargin/change_gate.h"
 #include "dewmargin/command_guard.h"
+#include "dewmargin/dehumidifier_fault.h"
+#include "dewmargin/dehumidifier_request.h"
 #include "dewmargin/engine.h"
 #include "dewmargin/event_emitter.h"
 #include "dewmargin/input_registry.h"
@@ -53,9 +55,16 @@ struct zone_rt {
   band published_band = band::unknown;
   alarm_status published_alarm;
   valve_position published_valve = valve_position::unset;
+  std::string published_hold;
+  std::string suppressed_by;  // the unit whose fault suppresses this zone's tight/alarm, or ""
+  std::string published_suppressed_by;
+  std::string published_source;             // margin_source, "" for null
+  std::optional<double> published_minutes;  // minutes_to_condensation as published
   bool published = false;
 
-  [[nodiscard]] bool counts_for_reset() const { return !valve || valve->counts_as_open(); }
+  // A zone held by the start-up permissive counts: its dew point must raise the water.
+  [[nodiscard]] bool counts_for_reset() const { return !valve || valve->counts_as_open() || valve->held(); }
+  [[nodiscard]] bool valve_held() const { return valve && valve->held(); }
   [[nodiscard]] event_subject subject() const { return {subject_type::zone, cfg->id}; }
 };
 
@@ -72,6 +81,12 @@ struct loop_rt {
   std::optional<double> cooling_kw;
 
   double last_event_setpoint_c;
+  setpoint_limit last_event_limit = setpoint_limit::max;
+  std::string last_event_governing;
+  // A limit or governing zone that differs from the last event's, and since when.
+  std::optional<timestamp> change_since;
+  setpoint_limit pending_limit = setpoint_limit::none;
+  std::string pending_governing;
   change_gate<5> gate;
   double published_setpoint_c = 0.0;
   setpoint_limit published_limit = setpoint_limit::none;
@@ -82,9 +97,20 @@ struct loop_rt {
 };
 
 struct dehumidifier_rt {
+  explicit dehumidifier_rt(const dehumidifier_config* c) : cfg(c), fault(c->fault_k, c->fault_after_s) {}
+
   const dehumidifier_config* cfg;
   std::vector<std::size_t> zones;
   std::optional<double> published_request_c;  // what the plant was last told
+  dehumidifier_trim trim{};
+  std::optional<std::size_t> fault_slot;
+  std::optional<std::size_t> supply_dew_point_slot;
+  dehumidifier_fault fault;
+  zone_alarm alarm;  // the unit's own alarm (ISA-18.2 states as a zone's)
+  bool published = false;
+  std::optional<double> published_supply_dew_point_c;
+
+  [[nodiscard]] event_subject subject() const { return {subject_type::dehumidifier, cfg->id}; }
 };
 
 struct engine::state {
@@ -95,6 +121,7 @@ struct engine::state {
   std::vector<zone_rt> zones;
   std::vector<loop_rt> loops;
   std::vector<dehumidifier_rt> dehumidifiers;
+  std::vector<std::vector<std::size_t>> units_of_zone;  // zone index -> its dehumidifiers
   std::unordered_map<std::string, std::size_t> zone_index;
   std::string cmd_prefix;
   event_emitter events;
@@ -133,11 +160,17 @@ struct engine::state {
   void publish_loop(loop_rt& l, timestamp now, engine_output& out, bool force);
   void update_cooling(loop_rt& l, timestamp now);
   void tick_dehumidifiers(timestamp now, engine_output& out);
+  void judge_unit_fault(dehumidifier_rt& d, timestamp now, engine_output& out);
+  void publish_dehumidifier(dehumidifier_rt& d, timestamp now, engine_output& out, bool force);
+  // The dehumidifier whose standing alarm suppresses this zone's tight/alarm annunciation.
+  const std::string* suppressor_of(std::size_t zi) const;
 
   // engine_commands.cpp
   void on_command(const std::string& topic, std::string_view payload, timestamp now, engine_output& out);
-  void emit_command_event(const zone_rt& z, const operator_command& c, const alarm_status& before, timestamp now,
-                          engine_output& out);
+  void emit_command_event(const event_subject& subject, const alarm_status& after, const operator_command& c,
+                          const alarm_status& before, timestamp now, engine_output& out);
+  void on_unit_command(dehumidifier_rt& d, const std::string& topic, const std::string& verb, const operator_command& c,
+                       timestamp now, engine_output& out);
   void reject(const std::string& topic, const std::string& verb, const std::string& zone, rejection_kind kind,
               const std::string& reason, timestamp now, engine_output& out);
   void emit_rejected(const std::string& topic, const std::string& verb, const std::string& zone,

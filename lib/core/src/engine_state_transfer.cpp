@@ -111,15 +111,22 @@ void engine::state::adopt(const state& p) {
   // was told on the same topic: a new topic has been told nothing yet.
   for (loop_rt& l : loops) {
     for (const loop_rt& old : p.loops) {
-      if (old.cfg->id == l.cfg->id && old.cfg->setpoint.topic == l.cfg->setpoint.topic) {
-        l.published_bare = old.published_bare;
-      }
+      if (old.cfg->id != l.cfg->id) continue;
+      if (old.cfg->setpoint.topic == l.cfg->setpoint.topic) l.published_bare = old.published_bare;
+      // And the last setpoint event, so that a reload alone makes none.
+      l.last_event_limit = old.last_event_limit;
+      l.last_event_governing = old.last_event_governing;
     }
   }
   for (dehumidifier_rt& d : dehumidifiers) {
     for (const dehumidifier_rt& old : p.dehumidifiers) {
-      if (old.cfg->id == d.cfg->id && old.cfg->dew_point_request.topic == d.cfg->dew_point_request.topic) {
-        d.published_request_c = old.published_request_c;
+      if (old.cfg->id == d.cfg->id) {
+        if (old.cfg->dew_point_request.topic == d.cfg->dew_point_request.topic) {
+          d.published_request_c = old.published_request_c;
+        }
+        d.trim = old.trim;  // the trimmed request and its step timer go on
+        d.fault.carry_over(old.fault);
+        d.alarm = old.alarm;
       }
     }
   }

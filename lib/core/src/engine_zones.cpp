@@ -40,12 +40,15 @@ void engine::state::evaluate_zone(std::size_t zi, timestamp now, engine_output& 
   z.margin = compute_zone_margin(readings_of(z, now));
 
   const bool switch_active = z.switch_slot && inputs[*z.switch_slot].active;
-  const band_step step = step_band_and_alarm(z.condition, z.margin, switch_active, now);
+  const std::string* suppressor = suppressor_of(zi);
+  const band_step step = step_band_and_alarm(z.condition, z.margin, switch_active, now, suppressor != nullptr);
+  z.suppressed_by = step.suppressed ? *suppressor : std::string();
   if (step.event_due) emit_band_event(z, step, switch_active, now, out);
+  // The trend first: the valve closes ahead of condensation by it.
+  if (z.margin.margin_k) z.trend.add(now, *z.margin.margin_k);
   const bool valve_moved = move_valve(z, step.after, now, out);
   if (step.event_due || valve_moved) emit_zone_snapshot(out, z, now);
 
-  if (z.margin.margin_k) z.trend.add(now, *z.margin.margin_k);
   if (auto finished = z.sample.add(now, z.margin, z.condition.bands.current(), z.cfg->id)) {
     out.samples.push_back(std::move(*finished));
   }
@@ -78,8 +81,17 @@ void engine::state::emit_band_event(const zone_rt& z, const band_step& step, boo
           e.text("reason", m.unknown_reason);
         }
         e.alarm(z.condition.alarm.status());
+        // A tight/alarm transition while the zone's unit is in fault: logged, not annunciated.
+        if (!z.suppressed_by.empty()) e.text("suppressed_by", z.suppressed_by);
       },
       alarm_related);
+}
+
+const std::string* engine::state::suppressor_of(std::size_t zi) const {
+  for (std::size_t ui : units_of_zone[zi]) {
+    if (dehumidifiers[ui].fault.fault()) return &dehumidifiers[ui].cfg->id;
+  }
+  return nullptr;
 }
 
 // True when the valve moved (an event and a command went out).
@@ -87,7 +99,20 @@ bool engine::state::move_valve(zone_rt& z, band b, timestamp now, engine_output&
   if (!z.valve) return false;
   const std::optional<bool> window_open =
       z.window_slot ? std::optional<bool>(inputs[*z.window_slot].active) : std::nullopt;
-  const auto d = step_valve(*z.valve, b, z.margin.unknown_is_fault, window_open, now);
+  const loop_rt& l = loops[z.loop];
+  const input_slot& supply = inputs[l.supply_slot];
+  valve_outlook o;
+  o.margin_k = z.margin.margin_k;
+  o.minutes_to_condensation = z.margin.margin_k ? z.trend.minutes_to_condensation(now) : std::nullopt;
+  // The reset can do no more for this zone: the water is at max_c and the zone's own dew
+  // point asks for more (not merely the fail-safe max_c of the start).
+  const setpoint_config& sp = l.cfg->setpoint;
+  o.reset_at_limit = l.reset.setpoint_c() >= sp.max_c - 1e-9 && z.margin.dew_point_c &&
+                     *z.margin.dew_point_c + sp.reset_margin_k >= sp.max_c - 1e-9;
+  o.dew_point_c = z.margin.dew_point_c;
+  o.supply_c = supply.fresh_value(now);
+  o.supply_awaiting = supply.status == input_status::awaiting;
+  const auto d = step_valve(*z.valve, b, z.margin.unknown_is_fault, window_open, o, now);
   if (!d) return false;
   events.emit(out, now, z.subject(), event_kind::valve, [&](event_json& e) {
     e.text_or_null("from", valve_position_name(d->from)).text("to", valve_position_name(d->to));
@@ -120,12 +145,19 @@ void engine::state::publish_zone(zone_rt& z, timestamp now, engine_output& out, 
   const alarm_status& alarm = z.condition.alarm.status();
   const band current = z.condition.bands.current();
   const valve_position vp = z.valve ? z.valve->position() : valve_position::unset;
-  const bool significant =
-      force || !z.published || current != z.published_band || alarm != z.published_alarm || vp != z.published_valve;
+  const std::string& hold = z.valve ? z.valve->hold_reason() : z.published_hold;
+  const bool significant = force || !z.published || current != z.published_band || alarm != z.published_alarm ||
+                           vp != z.published_valve || hold != z.published_hold ||
+                           z.suppressed_by != z.published_suppressed_by;
   const std::optional<double> minutes = m.margin_k ? z.trend.minutes_to_condensation(now) : std::nullopt;
+  // minutes_to_condensation comes and goes with the trend: it waits for min_interval_s.
   const change_gate<7>::values values{m.dew_point_c, m.air_temp_c, m.rh_pct, m.surface_min_c,
                                       m.supply_c,    m.margin_k,   minutes};
-  if (!z.gate.should_publish(significant, values, now, cfg.publish.min_interval_s)) return;
+  const change_gate<7>::values inputs_only{m.dew_point_c, m.air_temp_c, m.rh_pct,           m.surface_min_c,
+                                           m.supply_c,    m.margin_k,   z.published_minutes};
+  const std::string source = m.margin_source ? m.margin_source : "";
+  const bool news = source != z.published_source || z.gate.presence_changed(inputs_only);
+  if (!z.gate.should_publish(significant || news, values, now, cfg.publish.min_interval_s)) return;
   const zone_state_view v{cfg.site,
                           z.cfg->id,
                           now,
@@ -139,13 +171,19 @@ void engine::state::publish_zone(zone_rt& z, timestamp now, engine_output& out, 
                           m.margin_source,
                           vp == valve_position::unset ? nullptr : valve_position_name(vp),
                           alarm,
-                          minutes};
+                          minutes,
+                          hold.empty() ? nullptr : hold.c_str(),
+                          z.suppressed_by.empty() ? nullptr : z.suppressed_by.c_str()};
   out.messages.push_back(
       {cfg.publish.prefix + "/zone/" + z.cfg->id + "/state", format_zone_state(v), true, message_class::state});
   z.gate.commit(values, now);
   z.published_band = current;
   z.published_alarm = alarm;
   z.published_valve = vp;
+  z.published_hold = hold;
+  z.published_suppressed_by = z.suppressed_by;
+  z.published_source = source;
+  z.published_minutes = minutes;
   z.published = true;
 }
 

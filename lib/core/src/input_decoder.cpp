@@ -62,14 +62,19 @@ result<nlohmann::json> json_field(std::string_view payload, const std::string& f
 
 double to_core_units(double v, input_unit unit) {
   switch (unit) {
-    case input_unit::fahrenheit: return units::fahrenheit_to_celsius(v);
-    case input_unit::fraction: return v * 100.0;
-    case input_unit::cubic_metres_per_hour: return units::cubic_metres_per_hour_to_litres_per_second(v);
-    case input_unit::us_gallons_per_minute: return units::us_gpm_to_litres_per_second(v);
+    case input_unit::fahrenheit:
+      return units::fahrenheit_to_celsius(v);
+    case input_unit::fraction:
+      return v * 100.0;
+    case input_unit::cubic_metres_per_hour:
+      return units::cubic_metres_per_hour_to_litres_per_second(v);
+    case input_unit::us_gallons_per_minute:
+      return units::us_gpm_to_litres_per_second(v);
     case input_unit::none:
     case input_unit::celsius:
     case input_unit::percent:
-    case input_unit::litres_per_second: return v;
+    case input_unit::litres_per_second:
+      return v;
   }
   return v;
 }
@@ -110,14 +115,26 @@ bool matches_switch_word(std::string_view text, const std::vector<std::string>& 
 
 const char* input_kind_name(input_kind k) {
   switch (k) {
-    case input_kind::air_temp: return "air_temp";
-    case input_kind::humidity: return "humidity";
-    case input_kind::surface: return "surface";
-    case input_kind::supply_temp: return "supply_temp";
-    case input_kind::return_temp: return "return_temp";
-    case input_kind::flow: return "flow";
-    case input_kind::condensation_switch: return "condensation_switch";
-    case input_kind::window_contact: return "window_contact";
+    case input_kind::air_temp:
+      return "air_temp";
+    case input_kind::humidity:
+      return "humidity";
+    case input_kind::surface:
+      return "surface";
+    case input_kind::supply_temp:
+      return "supply_temp";
+    case input_kind::return_temp:
+      return "return_temp";
+    case input_kind::flow:
+      return "flow";
+    case input_kind::condensation_switch:
+      return "condensation_switch";
+    case input_kind::window_contact:
+      return "window_contact";
+    case input_kind::unit_fault:
+      return "fault";
+    case input_kind::supply_dew_point:
+      return "supply_dew_point";
   }
   return "input";
 }
@@ -195,6 +212,11 @@ result<double> check_plausible(double v, input_kind kind, const plausibility_con
         return make_error(error_code::out_of_range, format_range("air temperature", v, p.air_temp_c, "°C"));
       }
       break;
+    case input_kind::supply_dew_point:  // a dew point lies within the air temperatures
+      if (v < p.air_temp_c.min || v > p.air_temp_c.max) {
+        return make_error(error_code::out_of_range, format_range("supply-air dew point", v, p.air_temp_c, "°C"));
+      }
+      break;
     case input_kind::surface:
       if (v < p.surface_c.min || v > p.surface_c.max) {
         return make_error(error_code::out_of_range, format_range("surface temperature", v, p.surface_c, "°C"));
@@ -220,7 +242,9 @@ result<double> check_plausible(double v, input_kind kind, const plausibility_con
       }
       break;
     case input_kind::condensation_switch:
-    case input_kind::window_contact: break;
+    case input_kind::window_contact:
+    case input_kind::unit_fault:
+      break;
   }
   return v;
 }

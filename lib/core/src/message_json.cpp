@@ -89,6 +89,21 @@ std::string format_zone_state(const zone_state_view& v) {
   j["valve"] = text_or_null(v.valve);
   j["alarm"] = alarm_object(v.alarm);
   j["minutes_to_condensation"] = rounded(v.minutes_to_condensation);
+  j["valve_hold"] = text_or_null(v.valve_hold);
+  j["suppressed_by"] = text_or_null(v.suppressed_by);
+  return json_dump(j);
+}
+
+std::string format_dehumidifier_state(const dehumidifier_state_view& v) {
+  nlohmann::ordered_json j;
+  j["site"] = v.site;
+  j["dehumidifier"] = v.dehumidifier;
+  j["ts"] = format_iso8601_utc(v.ts);
+  j["request_c"] = rounded(v.request_c);
+  j["supply_dew_point_c"] = rounded(v.supply_dew_point_c);
+  j["fault"] = v.fault;
+  j["reason"] = v.reason.empty() ? nlohmann::ordered_json() : nlohmann::ordered_json(v.reason);
+  j["alarm"] = alarm_object(v.alarm);
   return json_dump(j);
 }
 

@@ -16,10 +16,14 @@ std::string format_reason(const char* fmt, const std::string& zone, double a, do
 
 const char* setpoint_limit_name(setpoint_limit l) {
   switch (l) {
-    case setpoint_limit::none: return "none";
-    case setpoint_limit::min: return "min";
-    case setpoint_limit::max: return "max";
-    case setpoint_limit::rate: return "rate";
+    case setpoint_limit::none:
+      return "none";
+    case setpoint_limit::min:
+      return "min";
+    case setpoint_limit::max:
+      return "max";
+    case setpoint_limit::rate:
+      return "rate";
   }
   return "none";
 }
@@ -45,6 +49,7 @@ bool supply_reset::update(const reset_demand& demand, timestamp now) {
   const setpoint_limit before_limit = limited_;
   const double elapsed_s = last_update_ ? std::max(0.0, seconds_between(*last_update_, now)) : 0.0;
   last_update_ = now;
+  governing_zone_ = demand.no_counted_zone ? std::string() : demand.governing_zone;
 
   if (t.target_c >= setpoint_c_) {
     setpoint_c_ = t.target_c;
@@ -76,6 +81,7 @@ bool supply_reset::raise_for(double dew_point_c, const std::string& zone, timest
   setpoint_c_ = t.target_c;
   limited_ = t.limited;
   reason_ = t.reason;
+  governing_zone_ = zone;
   last_update_ = now;
   return true;
 }
@@ -87,11 +93,13 @@ bool supply_reset::raise_to_max(const std::string& zone, timestamp now) {
   const reset_target t = compute_reset_target(d, cfg_);
   if (setpoint_c_ >= t.target_c && limited_ == setpoint_limit::max) {
     reason_ = t.reason;  // an unknown dew point outranks a high one as the reason
+    governing_zone_ = zone;
     return false;
   }
   setpoint_c_ = t.target_c;
   limited_ = t.limited;
   reason_ = t.reason;
+  governing_zone_ = zone;
   last_update_ = now;
   return true;
 }

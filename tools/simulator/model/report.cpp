@@ -2,7 +2,9 @@
 
 #include <cmath>
 #include <cstdio>
+#include <map>
 #include <nlohmann/json.hpp>
+#include <set>
 #include <sstream>
 
 #include "dewmargin/json_dump.h"
@@ -87,10 +89,35 @@ std::string wet_while(const simulation& sim, const char* label) {
 
 }  // namespace
 
+namespace {
+
+// Alarms the service raised (annunciated) while each kind of incident stood: a zone's alarm
+// onset counts for every incident active at its time.
+std::map<std::string, int> alarms_raised_while(const simulation& sim) {
+  std::map<std::string, int> by;
+  std::vector<std::vector<double>> onsets;
+  for (const auto& z : sim.watch().zones()) onsets.push_back(z.alarm_onsets_s);
+  onsets.push_back(sim.watch().tally().unit_alarm_onsets_s);  // the units' own alarms count too
+  for (const auto& list : onsets) {
+    for (double t_s : list) {
+      std::set<std::string> kinds;
+      for (const incident& i : sim.script().incidents) {
+        if (i.active_at(t_s)) kinds.insert(incident_kind_name(i.kind));
+      }
+      if (kinds.empty()) kinds.insert("no incident");
+      for (const auto& k : kinds) ++by[k];
+    }
+  }
+  return by;
+}
+
+}  // namespace
+
 std::string service_text(const simulation& sim) {
   std::ostringstream os;
   const auto& t = sim.watch().tally();
-  os << "service (its events on MQTT): alarms raised " << t.alarms_raised << ", acknowledged " << t.acknowledged;
+  os << "service (its events on MQTT): alarms raised " << t.alarms_raised << " by zones and "
+     << t.unit_alarm_onsets_s.size() << " by dehumidifiers, acknowledged " << t.acknowledged;
   if (sim.options().ack_after_s > 0) {
     os << " (by '" << sim.options().operator_name << "', the simulated operator, "
        << fixed(sim.options().ack_after_s / 60.0, 0) << " min after each)";
@@ -98,6 +125,12 @@ std::string service_text(const simulation& sim) {
   os << "\n  valve actions " << t.valves_closed + t.valves_opened << " (" << t.valves_closed << " closed, "
      << t.valves_opened << " opened), setpoint events " << t.setpoint_events << ", dehumidifier requests "
      << t.dehumidify_events << ", input events " << t.input_events << ", rejected commands " << t.rejected << "\n";
+  const auto raised_while = alarms_raised_while(sim);
+  if (!raised_while.empty()) {
+    os << "  alarms raised while:";
+    for (const auto& kv : raised_while) os << " " << kv.first << " " << kv.second;
+    os << "\n";
+  }
   const auto& c = sim.commands();
   os << "plant commands received:";
   for (const auto& kv : c.setpoint_by_loop) {
@@ -209,7 +242,9 @@ std::string summary_json(const simulation& sim, const pace_report* pace) {
                     {"rejected", t.rejected},
                     {"band_events", t.band_events},
                     {"alarms_by_zone", t.alarms_by_zone},
-                    {"bands_entered", t.bands_entered}};
+                    {"bands_entered", t.bands_entered},
+                    {"unit_alarms_raised", t.unit_alarm_onsets_s.size()},
+                    {"alarms_raised_while", alarms_raised_while(sim)}};
     const auto& c = sim.commands();
     nlohmann::json sp = nlohmann::json::object();
     for (const auto& kv : c.setpoint_by_loop) sp[kv.first] = {{"min_c", kv.second.min}, {"max_c", kv.second.max}};

@@ -128,6 +128,11 @@ void service_watch::on_event(std::string_view payload, double now_s) {
     switch (*kind) {
       case event_kind::band:
         ++tally_.band_events;
+        if (!text_at(j, "dehumidifier").empty()) {
+          // The unit's own alarm (its fault): one root-cause alarm, counted apart from the zones'.
+          if (to == "fault") tally_.unit_alarm_onsets_s.push_back(ts_s.value_or(now_s));
+          break;
+        }
         ++tally_.bands_entered[to];
         break;
       case event_kind::ack:

@@ -44,6 +44,7 @@ struct service_tally {
   int band_events = 0;
   std::map<std::string, int> alarms_by_zone;
   std::map<std::string, int> bands_entered;  // band name -> times entered (from band events)
+  std::vector<double> unit_alarm_onsets_s;   // a dehumidifier's alarm raised (its fault), time of day
 };
 
 class service_watch {

@@ -23,6 +23,15 @@ class change_gate {
     if (seconds_between(*last_ts_, now) < min_interval_s) return false;
     return moved(v);
   }
+  // True when a value appeared or disappeared since the last publication (null to a number
+  // or back): that is news at once, not after min_interval_s.
+  [[nodiscard]] bool presence_changed(const values& v) const {
+    if (!last_ts_) return true;
+    for (std::size_t i = 0; i < N; ++i) {
+      if (v[i].has_value() != last_[i].has_value()) return true;
+    }
+    return false;
+  }
   void commit(const values& v, timestamp now) {
     last_ = v;
     last_ts_ = now;

@@ -9,11 +9,11 @@
 namespace dewmargin {
 
 enum class input_unit {
-  none,                   // switches and contacts
+  none,  // switches and contacts
   celsius,
   fahrenheit,
   percent,
-  fraction,               // humidity as 0..1
+  fraction,  // humidity as 0..1
   litres_per_second,
   cubic_metres_per_hour,
   us_gallons_per_minute,
@@ -25,10 +25,10 @@ struct input_config {
   std::string topic;
   std::string field;
   input_unit unit = input_unit::none;
-  std::vector<std::string> active;            // switch/contact payloads meaning "active"
-  std::vector<std::string> inactive;          // ... meaning "inactive"; empty: the defaults
-                                              // (inactive_payloads() in input_decoder.h)
-  std::optional<double> stale_after_s;        // overrides the zone's; 0 means never stale
+  std::vector<std::string> active;      // switch/contact payloads meaning "active"
+  std::vector<std::string> inactive;    // ... meaning "inactive"; empty: the defaults
+                                        // (inactive_payloads() in input_decoder.h)
+  std::optional<double> stale_after_s;  // overrides the zone's; 0 means never stale
 };
 
 struct band_thresholds {
@@ -45,18 +45,20 @@ struct valve_config {
   std::string open_payload = "open";
   std::string closed_payload = "closed";
   double reopen_after_s = 600.0;
+  double close_ahead_min = 5.0;           // close when condensation is expected this soon
+  std::optional<double> open_margin_k{};  // start-up permissive; empty: the zone's margin_alarm_k
 };
 
 struct zone_config {
   std::string id;
   std::string loop;
   input_config air_temp;
-  std::vector<input_config> humidity;         // at least one; highest dew point wins
-  std::vector<input_config> surfaces;         // optional, any number; coldest wins
+  std::vector<input_config> humidity;  // at least one; highest dew point wins
+  std::vector<input_config> surfaces;  // optional, any number; coldest wins
   std::optional<input_config> condensation_switch;
   std::optional<input_config> window_contact;
   std::optional<valve_config> valve;
-  band_thresholds thresholds;                 // defaults merged with per-zone overrides
+  band_thresholds thresholds;  // defaults merged with per-zone overrides
 };
 
 struct setpoint_config {
@@ -73,7 +75,7 @@ struct loop_config {
   std::optional<input_config> return_temp;
   std::optional<input_config> flow;
   setpoint_config setpoint;
-  double stale_after_s = 180.0;               // from defaults; loops have no thresholds of their own
+  double stale_after_s = 180.0;  // from defaults; loops have no thresholds of their own
 };
 
 struct dew_point_request_config {
@@ -81,12 +83,22 @@ struct dew_point_request_config {
   double min_c = 8.0;
   double max_c = 14.0;
   double offset_k = 3.0;
+  // Trim-and-respond (ASHRAE Guideline 36's reset method) below the feed-forward.
+  double step_s = 120.0;    // one step this often
+  double respond_k = 0.3;   // lower by this per requesting zone
+  double max_step_k = 1.0;  // but at most this per step
+  double trim_k = 0.1;      // raise by this in a step without requests
 };
 
 struct dehumidifier_config {
   std::string id;
   std::vector<std::string> zones;
   dew_point_request_config dew_point_request;
+  // The unit's own alarm (suppression by design of its zones' tight/alarm annunciation):
+  std::optional<input_config> fault;             // switch: active while the unit reports a fault
+  std::optional<input_config> supply_dew_point;  // its measured supply-air dew point (°C)
+  double fault_k = 2.0;                          // measured dew point this far above the request ...
+  double fault_after_s = 600.0;                  // ... for this long is a fault
 };
 
 struct tls_config {
@@ -114,6 +126,7 @@ struct storage_config {
 struct publish_config {
   std::string prefix = "dewmargin";
   double min_interval_s = 5.0;
+  double setpoint_event_k = 0.5;  // a `setpoint` event once the setpoint moved this far
 };
 
 // Readings outside these ranges are rejected as implausible (an `input` event) and
@@ -124,14 +137,14 @@ struct value_range {
 };
 struct plausibility_config {
   value_range air_temp_c{-30.0, 60.0};
-  value_range surface_c{-20.0, 80.0};      // radiant panels also heat in winter
-  value_range water_c{0.0, 90.0};          // supply and return water
-  value_range humidity_pct{0.0, 103.0};    // (0, 100] after the overshoot clamp
+  value_range surface_c{-20.0, 80.0};    // radiant panels also heat in winter
+  value_range water_c{0.0, 90.0};        // supply and return water
+  value_range humidity_pct{0.0, 103.0};  // (0, 100] after the overshoot clamp
   value_range flow_l_s{0.0, 1000.0};
 };
 
 struct logging_config {
-  std::string level = "info";              // trace, debug, info, warn, error, critical, off
+  std::string level = "info";  // trace, debug, info, warn, error, critical, off
 };
 
 // Where the service takes "now" from. `wall`: the system clock (the default, and right for

@@ -12,10 +12,21 @@
 
 namespace dewmargin {
 
-enum class input_kind { air_temp, humidity, surface, supply_temp, return_temp, flow, condensation_switch, window_contact };
+enum class input_kind {
+  air_temp,
+  humidity,
+  surface,
+  supply_temp,
+  return_temp,
+  flow,
+  condensation_switch,
+  window_contact,
+  unit_fault,        // a dehumidifier's fault switch
+  supply_dew_point,  // a dehumidifier's measured supply-air dew point
+};
 const char* input_kind_name(input_kind k);
 constexpr bool is_switch_kind(input_kind k) {
-  return k == input_kind::condensation_switch || k == input_kind::window_contact;
+  return k == input_kind::condensation_switch || k == input_kind::window_contact || k == input_kind::unit_fault;
 }
 
 // Numeric reading in core units. The error message names what was wrong, not the topic

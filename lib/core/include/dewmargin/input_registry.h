@@ -34,7 +34,8 @@ const char* input_status_name(input_status s);
 
 struct input_owner {
   bool is_loop = false;
-  std::size_t index = 0;  // into the config's loops or zones
+  std::size_t index = 0;  // into the config's loops or zones (or dehumidifiers)
+  bool is_dehumidifier = false;
 };
 
 struct input_slot {

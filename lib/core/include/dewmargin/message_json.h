@@ -23,7 +23,7 @@ class event_json {
 
   event_json& text(const char* key, const std::string& value);
   event_json& text_or_null(const char* key, const std::string& value);  // "" → null
-  event_json& number(const char* key, std::optional<double> value);    // rounded, null when empty
+  event_json& number(const char* key, std::optional<double> value);     // rounded, null when empty
   event_json& integer(const char* key, long long value);
   event_json& null(const char* key);
   event_json& alarm(const alarm_status& a);
@@ -50,7 +50,21 @@ struct zone_state_view {
   const char* valve;          // "open", "closed" or nullptr (no valve / not yet commanded)
   alarm_status alarm;
   std::optional<double> minutes_to_condensation;
+  const char* valve_hold = nullptr;     // why the start-up permissive keeps the valve shut, or nullptr
+  const char* suppressed_by = nullptr;  // the dehumidifier whose fault suppresses tight/alarm, or nullptr
 };
+
+struct dehumidifier_state_view {
+  std::string site;
+  std::string dehumidifier;
+  timestamp ts;
+  std::optional<double> request_c;
+  std::optional<double> supply_dew_point_c;
+  bool fault = false;
+  std::string reason;  // why in fault, empty when not
+  alarm_status alarm;
+};
+std::string format_dehumidifier_state(const dehumidifier_state_view& v);
 std::string format_zone_state(const zone_state_view& v);
 
 struct loop_state_view {

@@ -46,6 +46,9 @@ class supply_reset {
   [[nodiscard]] double setpoint_c() const { return setpoint_c_; }
   [[nodiscard]] setpoint_limit limited() const { return limited_; }
   [[nodiscard]] const std::string& reason() const { return reason_; }
+  // The zone whose dew point sets the target (or whose unknown dew point drives it to max_c);
+  // empty with no counted zone.
+  [[nodiscard]] const std::string& governing_zone() const { return governing_zone_; }
   void restore(double setpoint_c) { setpoint_c_ = setpoint_c; }
 
  private:
@@ -53,6 +56,7 @@ class supply_reset {
   double setpoint_c_;
   setpoint_limit limited_ = setpoint_limit::max;
   std::string reason_ = "starting: no readings yet";
+  std::string governing_zone_;
   std::optional<timestamp> last_update_;
 };
 
