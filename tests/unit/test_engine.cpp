@@ -37,9 +37,13 @@ TEST(Engine, SafeZoneGetsItsValveOpenedAndMarginPublished) {
   EXPECT_NEAR(z1["dew_point_c"].get<double>(), dp(24, 50), 0.006);
   EXPECT_NEAR(z1["margin_k"].get<double>(), 17 - dp(24, 50), 0.006);
   EXPECT_EQ(z1["margin_source"], "surface");
+  // The air's RH at the 17 °C surface: psychro::surface_rh_pct, checked against psychrolib there.
+  EXPECT_NEAR(z1["surface_rh_pct"].get<double>(), psychro::surface_rh_pct(24, 50, 17).value(), 0.006);
   EXPECT_EQ(z1["valve"], "open");
   EXPECT_EQ(d.last_payload("b/z1/valve"), "open");
   EXPECT_EQ(d.last_payload("b/z2/valve"), "OPEN");  // configured payloads, not ours
+  // Without a surface input (z2 is judged on the supply) there is no surface RH.
+  EXPECT_TRUE(d.last_json("dm/zone/z2/state")["surface_rh_pct"].is_null());
 }
 
 TEST(Engine, CondensingReadingClosesValveAndRaisesAlarmAtOnce) {

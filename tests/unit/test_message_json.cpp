@@ -65,11 +65,25 @@ loop_state_view full_loop() {
 }
 
 TEST(ZoneStateJson, HasExactlyTheKeysOfTheDesign) {
-  // design.md, plus minutes_to_condensation, valve_hold (issue 10, rule 2) and suppressed_by (rule 4).
-  const std::set<std::string> expected = {
-      "site",          "zone",     "ts",       "band",          "dew_point_c", "air_temp_c", "rh_pct",
-      "surface_min_c", "supply_c", "margin_k", "margin_source", "valve",       "alarm",      "minutes_to_condensation",
-      "valve_hold",    "suppressed_by"};
+  // design.md, plus minutes_to_condensation, valve_hold (issue 10, rule 2), suppressed_by (rule 4)
+  // and surface_rh_pct (the mould criterion, for the live views).
+  const std::set<std::string> expected = {"site",
+                                          "zone",
+                                          "ts",
+                                          "band",
+                                          "dew_point_c",
+                                          "air_temp_c",
+                                          "rh_pct",
+                                          "surface_min_c",
+                                          "supply_c",
+                                          "margin_k",
+                                          "margin_source",
+                                          "valve",
+                                          "alarm",
+                                          "minutes_to_condensation",
+                                          "valve_hold",
+                                          "suppressed_by",
+                                          "surface_rh_pct"};
   const auto j = nlohmann::json::parse(format_zone_state(full_zone()));
   EXPECT_EQ(keys_of(j), expected);
   EXPECT_EQ(keys_of(j["alarm"]), (std::set<std::string>{"active", "acknowledged", "shelved_until"}));

@@ -2,6 +2,7 @@
 // the band and alarm, then the valve (zone_steps.h); and the zone's published state.
 #include <algorithm>
 
+#include "dewmargin/psychro.h"
 #include "engine_state.h"
 
 namespace dewmargin {
@@ -9,6 +10,15 @@ namespace {
 
 margin_input margin_input_of(const input_slot& s, timestamp now) {
   return {s.fresh_value(now), s.value, s.faulted(now), input_status_name(s.status)};
+}
+
+// The room air's relative humidity at the coldest measured surface (EN ISO 13788's mould
+// criterion); null without a fresh surface, air temperature and humidity.
+std::optional<double> surface_rh_of(const zone_margin& m) {
+  if (!m.surface_min_c || !m.air_temp_c || !m.rh_pct) return std::nullopt;
+  const auto rh = psychro::surface_rh_pct(*m.air_temp_c, *m.rh_pct, *m.surface_min_c);
+  if (!rh) return std::nullopt;
+  return rh.value();
 }
 
 }  // namespace
@@ -173,7 +183,8 @@ void engine::state::publish_zone(zone_rt& z, timestamp now, engine_output& out, 
                           alarm,
                           minutes,
                           hold.empty() ? nullptr : hold.c_str(),
-                          z.suppressed_by.empty() ? nullptr : z.suppressed_by.c_str()};
+                          z.suppressed_by.empty() ? nullptr : z.suppressed_by.c_str(),
+                          surface_rh_of(m)};
   out.messages.push_back(
       {cfg.publish.prefix + "/zone/" + z.cfg->id + "/state", format_zone_state(v), true, message_class::state});
   z.gate.commit(values, now);

@@ -83,6 +83,7 @@ std::string format_zone_state(const zone_state_view& v) {
   j["air_temp_c"] = rounded(v.air_temp_c);
   j["rh_pct"] = rounded(v.rh_pct);
   j["surface_min_c"] = rounded(v.surface_min_c);
+  j["surface_rh_pct"] = rounded(v.surface_rh_pct);
   j["supply_c"] = rounded(v.supply_c);
   j["margin_k"] = rounded(v.margin_k);
   j["margin_source"] = text_or_null(v.margin_source);

@@ -50,8 +50,9 @@ struct zone_state_view {
   const char* valve;          // "open", "closed" or nullptr (no valve / not yet commanded)
   alarm_status alarm;
   std::optional<double> minutes_to_condensation;
-  const char* valve_hold = nullptr;     // why the start-up permissive keeps the valve shut, or nullptr
-  const char* suppressed_by = nullptr;  // the dehumidifier whose fault suppresses tight/alarm, or nullptr
+  const char* valve_hold = nullptr;      // why the start-up permissive keeps the valve shut, or nullptr
+  const char* suppressed_by = nullptr;   // the dehumidifier whose fault suppresses tight/alarm, or nullptr
+  std::optional<double> surface_rh_pct;  // the room air's RH at the coldest surface (mould criterion)
 };
 
 struct dehumidifier_state_view {
