@@ -23,6 +23,11 @@ live_snapshot::copy sample_copy() {
   s.on_published("dm/loop/loop-1/state",
                  R"({"site":"x","loop":"loop-1","ts":"2026-07-14T13:04:10Z","setpoint_c":19.21,"supply_c":16.2,)"
                  R"("return_c":18.9,"flow_l_s":1.2,"reason":"r","limited":"none","cooling_kw":13.54})");
+  // A dehumidifier's state as the engine formats it (docs/interface.md, "Topics it publishes").
+  s.on_published("dm/dehumidifier/doas-1/state",
+                 R"({"site":"x","dehumidifier":"doas-1","ts":"2026-07-14T13:04:10Z","request_c":9.4,)"
+                 R"("supply_dew_point_c":13.2,"fault":true,"reason":"fault switch active",)"
+                 R"("alarm":{"active":true,"acknowledged":false,"shelved_until":null}})");
   s.on_published("dm/events", R"({"kind":"band"})");  // not a state: not kept
   s.on_published("plant/l1/sp", "17.5");              // not under the prefix
   service_counters c;
@@ -56,6 +61,11 @@ TEST(MetricsText, CarriesTheStateValuesAndEscapesLabels) {
   EXPECT_EQ(m.value("dewmargin_zone_dew_point_celsius" + a), 17.21);
   EXPECT_EQ(m.value("dewmargin_zone_surface_min_celsius" + a), 17.1);
   EXPECT_EQ(m.value("dewmargin_zone_surface_relative_humidity_percent" + a), 99.3);
+  const std::string unit = "{" + site + ",dehumidifier=\"doas-1\"}";
+  EXPECT_EQ(m.value("dewmargin_dehumidifier_dew_point_request_celsius" + unit), 9.4);
+  EXPECT_EQ(m.value("dewmargin_dehumidifier_supply_dew_point_celsius" + unit), 13.2);
+  EXPECT_EQ(m.value("dewmargin_dehumidifier_fault" + unit), 1.0);
+  EXPECT_EQ(m.value("dewmargin_dehumidifier_alarm_unacknowledged" + unit), 1.0);
   EXPECT_EQ(m.value("dewmargin_zone_time_to_condensation_seconds" + a), 30.0);
   EXPECT_EQ(m.value("dewmargin_zone_band{" + site + ",zone=\"room-a\",band=\"condensing\"}"), 1.0);
   EXPECT_EQ(m.value("dewmargin_zone_band{" + site + ",zone=\"room-a\",band=\"safe\"}"), 0.0);

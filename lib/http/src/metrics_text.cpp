@@ -116,6 +116,22 @@ std::string format_metrics(const live_snapshot::copy& s) {
     cooling.maybe(l, e->view.cooling_kw);
   }
 
+  family request("dewmargin_dehumidifier_dew_point_request_celsius", "gauge",
+                 "Supply-air dew point requested from the outdoor-air unit.");
+  family unit_dew("dewmargin_dehumidifier_supply_dew_point_celsius", "gauge",
+                  "The unit's measured supply-air dew point, when it has that input.");
+  family unit_fault("dewmargin_dehumidifier_fault", "gauge", "1 while the unit is in fault (its alarm condition).");
+  family unit_unacked("dewmargin_dehumidifier_alarm_unacknowledged", "gauge",
+                      "1 while the unit's alarm awaits acknowledgement.");
+  for (const auto* e : book.dehumidifiers()) {
+    const std::vector<std::pair<const char*, std::string>> l = {{"site", s.site},
+                                                                {"dehumidifier", e->view.dehumidifier}};
+    request.maybe(l, e->view.request_c);
+    unit_dew.maybe(l, e->view.supply_dew_point_c);
+    unit_fault.sample(l, e->view.fault ? 1 : 0);
+    unit_unacked.sample(l, e->view.alarm.acknowledged ? 0 : 1);
+  }
+
   const service_counters& c = s.counters;
   family messages("dewmargin_messages_received_total", "counter", "MQTT messages received.");
   messages.sample({}, static_cast<double>(c.messages_received));
@@ -137,10 +153,10 @@ std::string format_metrics(const live_snapshot::copy& s) {
   connected.sample({}, c.broker_connected ? 1 : 0);
 
   std::string out;
-  for (const family* f :
-       {&info,          &margin,        &dew,          &surface,  &surface_rh, &band,     &to_wet,   &alarm_active,
-        &alarm_unacked, &alarm_shelved, &zone_ts,      &setpoint, &supply,     &cooling,  &messages, &bad,
-        &rejected,      &reconnects,    &store_errors, &drops,    &commit,     &connected}) {
+  for (const family* f : {&info,         &margin,        &dew,           &surface,      &surface_rh, &band,   &to_wet,
+                          &alarm_active, &alarm_unacked, &alarm_shelved, &zone_ts,      &setpoint,   &supply, &cooling,
+                          &request,      &unit_dew,      &unit_fault,    &unit_unacked, &messages,   &bad,    &rejected,
+                          &reconnects,   &store_errors,  &drops,         &commit,       &connected}) {
     f->append_to(out);
   }
   return out;

@@ -61,6 +61,14 @@ class field_reader {
     return true;
   }
 
+  bool flag(const char* key, bool& out) {
+    const auto it = doc_.find(key);
+    if (it == doc_.end() || it->is_null()) return true;
+    if (!it->is_boolean()) return fail(key, "true or false");
+    out = it->get<bool>();
+    return true;
+  }
+
   bool alarm(alarm_view& out) {
     const auto it = doc_.find("alarm");
     if (it == doc_.end() || it->is_null()) return true;
@@ -179,7 +187,8 @@ result<dehumidifier_view> parse_dehumidifier_state(std::string_view payload) {
   dehumidifier_view v;
   field_reader r(doc.value(), "dehumidifier state");
   const bool ok = r.required_text("dehumidifier", v.dehumidifier) && r.text("site", v.site) && r.time("ts", v.ts) &&
-                  r.number("dew_point_request_c", v.request_c) && r.alarm(v.alarm);
+                  r.number("request_c", v.request_c) && r.number("supply_dew_point_c", v.supply_dew_point_c) &&
+                  r.flag("fault", v.fault) && r.alarm(v.alarm);
   if (!ok) return r.failure();
   return v;
 }

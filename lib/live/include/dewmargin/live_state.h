@@ -74,7 +74,9 @@ struct dehumidifier_view {
   std::string site;
   std::string dehumidifier;
   std::optional<timestamp> ts;
-  std::optional<double> request_c;  // dew_point_request_c when present
+  std::optional<double> request_c;           // the requested supply-air dew point
+  std::optional<double> supply_dew_point_c;  // the unit's measured supply-air dew point
+  bool fault = false;                        // the unit's alarm condition (fault switch or no delivery)
   alarm_view alarm;
 };
 
