@@ -187,10 +187,7 @@ class history_reader::impl {
     sqlite3* db = db_.get();
     int rc = store_detail::exec(db, "BEGIN");
     if (rc != SQLITE_OK) return failure("starting a read transaction", rc);
-    struct end_read {
-      sqlite3* db;
-      ~end_read() { store_detail::exec(db, "COMMIT"); }
-    } const end{db};
+    const read_transaction_end end{db};
     std::int64_t hours_until = 0;
     std::int64_t minutes_from = 0;
     rc = read_mark("hours_until", hours_until);
@@ -315,15 +312,18 @@ class history_reader::impl {
 
   int version() const { return version_; }
 
+  // Ends a read transaction begun with BEGIN, however the reading that follows returns.
+  struct read_transaction_end {
+    sqlite3* db;
+    ~read_transaction_end() { store_detail::exec(db, "COMMIT"); }
+  };
+
   store_result<restored_state> load_restored_state() const {
     sqlite3* db = db_.get();
     // One read transaction: zones and loops come from the same committed state.
     int rc = store_detail::exec(db, "BEGIN");
     if (rc != SQLITE_OK) return failure("starting a read transaction", rc);
-    struct end_read {
-      sqlite3* db;
-      ~end_read() { store_detail::exec(db, "COMMIT"); }
-    } const end{db};
+    const read_transaction_end end{db};
     restored_state state;
     statement zones;
     rc = statement::prepare(db,
