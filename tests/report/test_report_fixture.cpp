@@ -3,12 +3,10 @@
 // that scenario; the working is beside each check.
 #include <gtest/gtest.h>
 
-#include <fstream>
-#include <sstream>
-
 #include "dewmargin/psychro.h"
 #include "dewmargin/report/report_data.h"
 #include "dewmargin/store.h"
+#include "report_fixture_db.h"
 #include "store_test_support.h"
 
 namespace dewmargin::report {
@@ -20,28 +18,6 @@ using store_test::temp_dir;
 constexpr double k_min = 60.0;
 const timestamp k_since = parse_iso8601("2026-07-14T08:00:00Z").value();
 const timestamp k_until = parse_iso8601("2026-07-14T12:00:00Z").value();
-
-std::string read_file(const std::string& path) {
-  std::ifstream in(path);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
-// A database made by the service's writer (schema of this program), with the fixture loaded.
-std::filesystem::path fixture_db(const temp_dir& dir) {
-  const auto file = dir.file("history.db");
-  store_test::error_sink errors;
-  auto options = store_test::test_options(file, errors);
-  auto w = store_writer::open(options);
-  EXPECT_TRUE(w.ok()) << w.err().message;
-  w.value().stop();
-  raw_db db(file);
-  const std::string sql = read_file(std::string(DEWMARGIN_TEST_DATA_DIR) + "/history/report_fixture.sql");
-  EXPECT_FALSE(sql.empty());
-  EXPECT_EQ(db.exec(sql), SQLITE_OK);
-  return file;
-}
 
 report_data fixture_report(const std::filesystem::path& file) {
   auto reader = history_reader::open(file);
@@ -64,7 +40,7 @@ const zone_report& zone(const report_data& d, const std::string& id) {
 
 TEST(ReportFixture, BandTimesFromTheBandEvents) {
   temp_dir dir;
-  const report_data d = fixture_report(fixture_db(dir));
+  const report_data d = fixture_report(report_fixture_db(dir));
   ASSERT_EQ(d.zones.size(), 2u);
   const zone_review& a = zone(d, "a").review;
   // safe 08:00-08:30, 09:30-10:00, 10:06-12:00 = 30 + 30 + 114; tight 08:30-08:40, 09:05-09:30;
@@ -84,7 +60,7 @@ TEST(ReportFixture, BandTimesFromTheBandEvents) {
 
 TEST(ReportFixture, TimeToAcknowledgeAndWarningTime) {
   temp_dir dir;
-  const report_data d = fixture_report(fixture_db(dir));
+  const report_data d = fixture_report(report_fixture_db(dir));
   const zone_review& a = zone(d, "a").review;
   ASSERT_EQ(a.raises.size(), 2u);  // 08:40 (alarm), 10:00 (straight to condensing)
   // 08:40 → ack 08:55 = 15 min; 10:00 → ack 10:12 = 12 min; median of two = 13.5 min.
@@ -108,7 +84,7 @@ TEST(ReportFixture, TimeToAcknowledgeAndWarningTime) {
 
 TEST(ReportFixture, AlarmSystemFigures) {
   temp_dir dir;
-  const report_data d = fixture_report(fixture_db(dir));
+  const report_data d = fixture_report(report_fixture_db(dir));
   const alarm_figures& f = d.alarms;
   EXPECT_EQ(f.alarms, 20);                           // a 2 + b 18
   EXPECT_DOUBLE_EQ(f.per_day_avg, 20 / (4.0 / 24));  // 4 hours: 120 a day
@@ -132,7 +108,7 @@ TEST(ReportFixture, AlarmSystemFigures) {
 
 TEST(ReportFixture, MouldHoursAndWorstMargin) {
   temp_dir dir;
-  const report_data d = fixture_report(fixture_db(dir));
+  const report_data d = fixture_report(report_fixture_db(dir));
   const zone_period& a = zone(d, "a").series.total();
   // 85 % over 09:00-10:29 (90 min) and 82 % over 11:20-11:49 (30 min): 2.0 h, longest 90 min.
   EXPECT_EQ(a.mould_minutes, 120);
@@ -148,7 +124,7 @@ TEST(ReportFixture, MouldHoursAndWorstMargin) {
 
 TEST(ReportFixture, PageHasOneMarginChartPerZoneAndNothingFromOutside) {
   temp_dir dir;
-  const report_data d = fixture_report(fixture_db(dir));
+  const report_data d = fixture_report(report_fixture_db(dir));
   const std::string html = render_html(d);
   std::size_t margin_charts = 0;
   for (std::size_t at = html.find("aria-label=\"margin of zone "); at != std::string::npos;

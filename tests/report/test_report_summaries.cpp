@@ -4,11 +4,9 @@
 // same: minima and when, band minutes, mould minutes and runs, bucket by bucket, and the page.
 #include <gtest/gtest.h>
 
-#include <fstream>
-#include <sstream>
-
 #include "dewmargin/report/report_data.h"
 #include "dewmargin/store.h"
+#include "report_fixture_db.h"
 #include "store_test_support.h"
 
 namespace dewmargin::report {
@@ -16,26 +14,6 @@ namespace {
 
 using store_test::raw_db;
 using store_test::temp_dir;
-
-std::string read_file(const std::string& path) {
-  std::ifstream in(path);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
-std::filesystem::path fixture_db(const temp_dir& dir) {
-  const auto file = dir.file("history.db");
-  store_test::error_sink errors;
-  auto w = store_writer::open(store_test::test_options(file, errors));
-  EXPECT_TRUE(w.ok()) << w.err().message;
-  w.value().stop();
-  raw_db db(file);
-  const std::string sql = read_file(std::string(DEWMARGIN_TEST_DATA_DIR) + "/history/report_fixture.sql");
-  EXPECT_FALSE(sql.empty());
-  EXPECT_EQ(db.exec(sql), SQLITE_OK);
-  return file;
-}
 
 // One maintenance pass of the service's writer: it summarises every hour before the newest one
 // (no roll-up: the minutes stay).
@@ -96,7 +74,7 @@ TEST(ReportSummaries, TheReportFromHoursEqualsTheReportFromMinutes) {
                         period_case{"2026-07-14T07:00:00Z", "2026-07-14T12:00:00Z", 5}}) {
     SCOPED_TRACE(std::string(c.since) + " … " + c.until);
     temp_dir dir;
-    const auto file = fixture_db(dir);
+    const auto file = report_fixture_db(dir);
     const report_data from_minutes = report(file, c.since, c.until, c.buckets);
     ASSERT_TRUE(from_minutes.layout.whole_hours()) << "buckets of whole hours: the summaries may be used";
     summarise(file);
@@ -126,7 +104,7 @@ TEST(ReportSummaries, TheReportFromHoursEqualsTheReportFromMinutes) {
 
 TEST(ReportSummaries, ShortPeriodsAreDrawnFromMinutes) {
   temp_dir dir;
-  const auto file = fixture_db(dir);
+  const auto file = report_fixture_db(dir);
   summarise(file);
   // 4 h in at most 480 points: buckets of a minute; no hour may stand for its minutes.
   const report_data d = report(file, "2026-07-14T08:00:00Z", "2026-07-14T12:00:00Z", 480);
