@@ -444,11 +444,17 @@ class service {
       batch_.clear();  // what the new config produced before the fault must not go out
       const std::string why = text_excerpt(e.what(), k_report_bytes);
       log_->error("reload of {} failed: {}; the previous config stays in force", options_.config_path.string(), why);
-      core_->service_event(service_now(), "running", "running",
-                           "reload rejected (" + why + "); the previous config stays in force", batch_);
-      dispatch();
-      notifier_.ready("reload rejected; previous config in force");
+      reject_reload(service_now(), why);
     }
+  }
+
+  // A reload that is not taken: a `service` event saying why, and systemd told the old config
+  // is still in force. `why` is already safe text.
+  void reject_reload(timestamp now, const std::string& why) {
+    core_->service_event(now, "running", "running", "reload rejected (" + why + "); the previous config stays in force",
+                         batch_);
+    dispatch();
+    notifier_.ready("reload rejected; previous config in force");
   }
 
   timestamp service_now() { return event_time_ ? event_now_ : clock_now(); }
@@ -479,24 +485,14 @@ class service {
       // The file may hold anything (binary junk): escaped before it goes into an event.
       const std::string first = loaded.errors.empty() ? std::string("unknown error")
                                                       : text_excerpt(loaded.errors.front().to_string(), k_report_bytes);
-      core_->service_event(now, "running", "running",
-                           "reload rejected (" + std::to_string(loaded.errors.size()) + " errors; first: " + first +
-                               "); the previous config stays in force",
-                           batch_);
-      dispatch();
-      notifier_.ready("reload rejected; previous config in force");
+      reject_reload(now, std::to_string(loaded.errors.size()) + " errors; first: " + first);
       return;
     }
     if (const auto added = new_input_topics(core_->config(), *loaded.config); !added.empty()) {
       std::string topics;
       for (const auto& t : added) topics += (topics.empty() ? "'" : ", '") + text_excerpt(t, 120) + "'";
       log_->error("reload rejected: new input topics need a restart (they are subscribed at start): {}", topics);
-      core_->service_event(now, "running", "running",
-                           "reload rejected (new input topics need a restart: " + text_excerpt(topics, k_report_bytes) +
-                               "); the previous config stays in force",
-                           batch_);
-      dispatch();
-      notifier_.ready("reload rejected; previous config in force");
+      reject_reload(now, "new input topics need a restart: " + text_excerpt(topics, k_report_bytes));
       return;
     }
     for (const auto& setting : restart_needed(core_->config(), *loaded.config)) {

@@ -740,7 +740,7 @@ TEST(Engine, IgnoresRetainedMeasurementsAndCommandsButTakesRetainedSwitches) {
 }
 
 TEST(Engine, ARetainedSwitchStateRedeliveredAfterAReconnectNeverOverridesALiveOne) {
-  // The broker re-sends retained messages at each resubscription (MQTT 3.1.1, 3.8.4): an old
+  // The broker re-sends retained messages at each resubscription (MQTT 3.1.1, 3.8.4, from memory): an old
   // retained "closed" must not reopen a valve closed by a live "open" heard since start.
   engine_driver d(small_site());
   d.readings(24, 50, 17, 16);
