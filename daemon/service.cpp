@@ -1,5 +1,7 @@
 #include "service.h"
 
+#include <malloc.h>
+
 #include <chrono>
 #include <nlohmann/json.hpp>
 #include <optional>
@@ -34,7 +36,7 @@ namespace {
 constexpr auto k_tick = std::chrono::seconds(1);
 constexpr auto k_http_retry = std::chrono::seconds(60);      // the web server, when it could not start
 constexpr auto k_max_wait = std::chrono::milliseconds(200);  // signal and watchdog latency
-constexpr int k_burst = 256;
+constexpr std::size_t k_burst = 256;
 constexpr std::size_t k_max_early_messages = 1000;
 // Opening the history database again after a failure: soon at first (a lock or a full disk
 // clears quickly), then less often.
@@ -316,15 +318,16 @@ class service {
   void loop() {
     auto next_tick = std::chrono::steady_clock::now() + k_tick;
     bool announced_ready = false;
-    inbound_message msg;
+    std::vector<inbound_message> inbox;  // reused: no allocation per burst
+    inbox.reserve(k_burst);
     for (;;) {
       const auto steady = std::chrono::steady_clock::now();
       const auto wait = std::min<std::chrono::steady_clock::duration>(
           k_max_wait, std::max<std::chrono::steady_clock::duration>(next_tick - steady, std::chrono::milliseconds(0)));
-      if (link_->next_message(msg, std::chrono::duration_cast<std::chrono::milliseconds>(wait))) {
-        handle(msg);
-        // A burst is taken without waiting, and without the per-pass checks below.
-        for (int i = 0; i < k_burst && link_->next_message(msg, std::chrono::milliseconds(0)); ++i) handle(msg);
+      // A burst is taken at once, and handled without the per-pass checks below.
+      inbox.clear();
+      if (link_->next_batch(inbox, k_burst, std::chrono::duration_cast<std::chrono::milliseconds>(wait)) > 0) {
+        for (const auto& msg : inbox) handle(msg);
       }
       const auto after = std::chrono::steady_clock::now();
       if (after >= next_tick) {
@@ -343,6 +346,9 @@ class service {
       }
       if (!announced_ready && link_->ready()) {
         announced_ready = true;
+        // The config's parse tree and the start-up burst are gone by now: give their pages
+        // back (glibc keeps freed heap otherwise, and it was most of the resident memory).
+        (void)malloc_trim(0);
         notifier_.ready("connected to " + core_->config().broker.uri + ", supervising " +
                         std::to_string(core_->config().zones.size()) + " zones");
         log_->info("connected and subscribed to {} topics", core_->subscriptions().size());

@@ -29,6 +29,8 @@ test_broker_start() {
     test_broker_listening "$candidate" && continue
     printf 'listener %s 127.0.0.1\nallow_anonymous true\npersistence false\nlog_dest stderr\nmax_queued_messages 0\n' \
       "$candidate" >"$dir/mosquitto.conf"
+    # Extra broker settings, one per line (bench/run: set_tcp_nodelay true).
+    [[ -n ${TEST_BROKER_EXTRA:-} ]] && printf '%s\n' "$TEST_BROKER_EXTRA" >>"$dir/mosquitto.conf"
     chmod 644 "$dir/mosquitto.conf"
     mosquitto -c "$dir/mosquitto.conf" 2>>"$log" &
     test_broker_pid=$!

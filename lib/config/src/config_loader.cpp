@@ -64,6 +64,23 @@ std::optional<YAML::Mark> second_document(const std::string& text) {
   return starts.marks[1];
 }
 
+// A second document needs a marker line ("---" or "...") after the first document's content;
+// without one the second parse is skipped (it doubled the load time of a large site).
+bool may_hold_a_second_document(std::string_view text) {
+  bool content_seen = false;
+  std::size_t start = 0;
+  while (start < text.size()) {
+    const std::size_t end = std::min(text.find('\n', start), text.size());
+    const std::string_view line = text.substr(start, end - start);
+    const bool marker = line.substr(0, 3) == "---" || line.substr(0, 3) == "...";
+    if (marker && (content_seen || line.substr(0, 3) == "...")) return true;
+    const auto first = line.find_first_not_of(" \t\r");
+    if (first != std::string_view::npos && line[first] != '#') content_seen = true;
+    start = end + 1;
+  }
+  return false;
+}
+
 }  // namespace
 
 config_load_result load_config_text(std::string_view yaml_text, const std::string& file_label) {
@@ -82,7 +99,7 @@ config_load_result load_config_text(std::string_view yaml_text, const std::strin
     if (document.IsNull()) {
       diag.error({1, 1}, "the file holds no config (expected site, broker, storage, loops and zones)");
     } else {
-      if (const auto second = second_document(text)) {
+      if (const auto second = may_hold_a_second_document(text) ? second_document(text) : std::nullopt) {
         diag.error(mark_or_start(*second), "only one YAML document is expected; a second one starts here");
       }
       config_detail::reading r{config, index, diag};

@@ -41,11 +41,29 @@ bool inbound_queue::pop(inbound_message& out, std::chrono::milliseconds timeout)
   if (!not_empty_.wait_for(lock, timeout, [&] { return size_locked() > 0; })) {
     return false;
   }
+  take_front_locked(out);
+  return true;
+}
+
+std::size_t inbound_queue::pop_batch(std::vector<inbound_message>& out, std::size_t max_messages,
+                                     std::chrono::milliseconds timeout) {
+  std::unique_lock<std::mutex> lock(mutex_);
+  if (timeout.count() > 0) {
+    (void)not_empty_.wait_for(lock, timeout, [&] { return size_locked() > 0; });
+  }
+  std::size_t moved = 0;
+  for (; moved < max_messages && size_locked() > 0; ++moved) {
+    out.emplace_back();
+    take_front_locked(out.back());
+  }
+  return moved;
+}
+
+void inbound_queue::take_front_locked(inbound_message& out) {
   const bool from_kept = droppable_.empty() || (!kept_.empty() && kept_.front().seq < droppable_.front().seq);
   auto& lane = from_kept ? kept_ : droppable_;
   out = std::move(lane.front().message);
   lane.pop_front();
-  return true;
 }
 
 inbound_queue_counters inbound_queue::counters() const {

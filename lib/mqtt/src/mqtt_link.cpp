@@ -12,6 +12,7 @@
 #include <utility>
 
 #include "dewmargin/secret_file.h"
+#include "dewmargin/tcp_nodelay.h"
 #include "link_client_options.h"
 #include "link_options_check.h"
 #include "tcp_probe.h"
@@ -93,6 +94,7 @@ enum class session_phase { down, subscribing, sending, paused };
 struct mqtt_link::impl {
   explicit impl(mqtt_link_options options)
       : options_(std::move(options)),
+        broker_port_(broker_uri_port(options_.broker.uri)),
         box_(options_.outbox_capacity),
         inbound_(options_.inbound_capacity, options_.must_keep_prefixes),
         delivery_listener_(
@@ -177,6 +179,23 @@ struct mqtt_link::impl {
     std::lock_guard<std::mutex> lock(mutex_);
     reported_.inbound_drop = false;  // the queue ran empty: report the next overflow again
     return false;
+  }
+
+  std::size_t next_batch(std::vector<inbound_message>& out, std::size_t max_messages,
+                         std::chrono::milliseconds timeout) {
+    std::size_t taken = 0;
+    if (gathering_ && options_.inbound_gather.count() > 0) {
+      // The last call found messages: let more arrive before taking them (no wake per message).
+      std::this_thread::sleep_for(std::min<std::chrono::microseconds>(options_.inbound_gather, timeout));
+      taken = inbound_.pop_batch(out, max_messages, std::chrono::milliseconds(0));
+    }
+    if (taken == 0) taken = inbound_.pop_batch(out, max_messages, timeout);
+    gathering_ = taken > 0;
+    if (taken == 0) {
+      std::lock_guard<std::mutex> lock(mutex_);
+      reported_.inbound_drop = false;  // the queue ran empty: report the next overflow again
+    }
+    return taken;
   }
 
   bool connected() const {
@@ -499,6 +518,8 @@ struct mqtt_link::impl {
   }
 
   void on_connected(const std::string& /*cause*/) {
+    // Before anything is published on the new connection (tcp_nodelay.h: the 40 ms floor).
+    (void)set_tcp_nodelay_to_peer(broker_port_);
     std::uint64_t epoch = 0;
     std::uint64_t connection_number = 0;
     std::size_t queued_again = 0;
@@ -670,6 +691,8 @@ struct mqtt_link::impl {
   }
 
   const mqtt_link_options options_;
+  const int broker_port_;
+  bool gathering_ = false;  // worker thread only: the last next_batch() found messages
   ::mqtt::connect_options connect_options_;
 
   mutable std::mutex mutex_;
@@ -736,6 +759,10 @@ mqtt_link::~mqtt_link() = default;
 void mqtt_link::start() { impl_->start(); }
 bool mqtt_link::next_message(inbound_message& out, std::chrono::milliseconds timeout) {
   return impl_->next_message(out, timeout);
+}
+std::size_t mqtt_link::next_batch(std::vector<inbound_message>& out, std::size_t max_messages,
+                                  std::chrono::milliseconds timeout) {
+  return impl_->next_batch(out, max_messages, timeout);
 }
 void mqtt_link::publish(outbound_message message) { impl_->publish(std::move(message)); }
 bool mqtt_link::connected() const { return impl_->connected(); }

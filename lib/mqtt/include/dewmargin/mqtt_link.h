@@ -19,7 +19,7 @@
 //   afterwards the library reconnects automatically with the same bounds.
 //
 // Threads:
-// - Caller threads (the service's worker): publish(), next_message(), stats(), connected(),
+// - Caller threads (the service's worker): publish(), next_message(), next_batch(), stats(), connected(),
 //   ready(), last_connect_error(), shutdown(). All of them only take the link's lock briefly;
 //   next_message() waits on the inbound queue alone.
 // - The link's sender thread: makes the first connect, then moves messages from the
@@ -97,6 +97,11 @@ struct mqtt_link_options {
   std::vector<std::string> must_keep_prefixes;  // inbound topics never dropped ("<prefix>/cmd/")
   std::size_t inbound_capacity = 10000;         // messages
   std::size_t outbox_capacity = 10000;          // messages
+  // After a call of next_batch() that returned messages, the next call first lets up to this
+  // long pass, so that at high rates the worker takes messages in bursts instead of being
+  // woken once per message (a wake costs more than handling a reading). The delay it adds
+  // to a reading is at most this, and only while messages keep coming.
+  std::chrono::microseconds inbound_gather{1000};
   std::size_t max_in_flight = 64;               // about 100 QoS 1 in flight gives Paho error -12
   std::chrono::seconds reconnect_min{1};        // back-off bounds; the library counts whole seconds
   std::chrono::seconds reconnect_max{30};
@@ -143,6 +148,11 @@ class mqtt_link {
 
   // Worker thread: waits up to timeout for the next inbound message.
   bool next_message(inbound_message& out, std::chrono::milliseconds timeout);
+
+  // Worker thread: waits up to timeout for inbound messages and appends up to max_messages
+  // of them to out, in arrival order (see inbound_gather). Returns how many.
+  std::size_t next_batch(std::vector<inbound_message>& out, std::size_t max_messages,
+                         std::chrono::milliseconds timeout);
 
   // Queues a message for QoS 1 delivery. Never blocks on the network. A topic that is
   // empty or holds a wildcard is refused (reported, counted in `rejected`).
