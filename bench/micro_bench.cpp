@@ -12,7 +12,7 @@
 // other processes hold the core, which is not this code's cost.
 //
 // Usage: dewmargin_micro_bench [Google Benchmark flags]
-//   smoke run (about a second): dewmargin_micro_bench --benchmark_min_time=0.01
+//   smoke run (about 2 s): dewmargin_micro_bench --benchmark_min_time=0.01
 #include <benchmark/benchmark.h>
 
 #include <array>
