@@ -10,6 +10,10 @@ namespace {
 // outbox.h). Keyed classes are not in it: they are never dropped for lack of room.
 constexpr std::array<message_class, 2> k_drop_order{message_class::event, message_class::alarm_event};
 
+// See outbox_capacity_for_zones() in outbox.h for why these numbers.
+constexpr std::size_t k_min_capacity = 10'000;
+constexpr std::size_t k_unkeyed_per_zone = 8;
+
 constexpr std::size_t drop_rank(message_class cls) {
   for (std::size_t rank = 0; rank < k_drop_order.size(); ++rank) {
     if (k_drop_order[rank] == cls) {
@@ -20,6 +24,10 @@ constexpr std::size_t drop_rank(message_class cls) {
 }
 
 }  // namespace
+
+std::size_t outbox_capacity_for_zones(std::size_t zones) {
+  return std::max(k_min_capacity, k_unkeyed_per_zone * zones);
+}
 
 outbox::outbox(std::size_t capacity_messages) : capacity_(std::max<std::size_t>(capacity_messages, 1)) {}
 

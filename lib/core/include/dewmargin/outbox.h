@@ -57,6 +57,16 @@ constexpr std::size_t class_index(message_class cls) { return static_cast<std::s
 // True for the classes keyed by topic (state, command).
 constexpr bool is_keyed(message_class cls) { return cls == message_class::state || cls == message_class::command; }
 
+// The capacity (unkeyed entries) for a site of `zones` zones: max(10,000, 8 x zones).
+// Why: at start every zone makes a burst of events before the broker may have acknowledged
+// any. With its sensors reporting, a band event (unknown to a band) and a valve event; with
+// its sensors silent (a feed not running, or the broker down, since the sensors publish
+// through it), an input event per sensor once stale_after_s has passed, and a band and a
+// valve event: five for a zone of three sensors and a valve (tests/unit/test_outbox_startup).
+// Eight per zone leaves room for zones of up to six sensors. The bound costs nothing until
+// used; full, it holds roughly 0.5 kB per entry (payload about 300 bytes plus bookkeeping).
+[[nodiscard]] std::size_t outbox_capacity_for_zones(std::size_t zones);
+
 class outbox {
  public:
   // capacity_messages bounds the unkeyed entries; at least 1 (a smaller value is taken as 1).
