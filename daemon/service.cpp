@@ -150,6 +150,7 @@ class service {
     o.offline_will_payload = status_payload(cfg, "offline", "connection lost");
     o.subscriptions = core_->subscriptions();
     o.must_keep_prefixes = {core_->command_prefix()};
+    o.outbox_capacity = outbox_capacity_for_zones(cfg.zones.size());  // the start-up burst fits (outbox.h)
     o.report = [this](link_report_level level, const std::string& message) {
       const auto l = level == link_report_level::error     ? spdlog::level::err
                      : level == link_report_level::warning ? spdlog::level::warn
@@ -279,6 +280,7 @@ class service {
     c.bad_inputs = retired_bad_inputs_ + ec.bad_readings;
     c.commands_rejected = retired_rejected_ + ec.rejected;
     c.broker_reconnects = st.reconnects;
+    c.inbound_drops = st.dropped_inbound;
     c.outbox_drops = st.dropped_outbox_of(message_class::event) + st.dropped_outbox_of(message_class::alarm_event) +
                      st.dropped_outbox_of(message_class::state) + st.dropped_outbox_of(message_class::command);
     if (store_) {
@@ -537,7 +539,8 @@ class service {
     }
     link_->shutdown(status_payload(core_->config(), "offline", "stopped"), k_stop_link_timeout);
     const auto st = link_->stats();
-    log_->info("stopped: {} messages received, {} delivered, {} outbox drops", st.received, st.delivered,
+    log_->info("stopped: {} messages received, {} delivered, {} inbound drops, {} outbox drops", st.received,
+               st.delivered, st.dropped_inbound,
                st.dropped_outbox_of(message_class::event) + st.dropped_outbox_of(message_class::alarm_event) +
                    st.dropped_outbox_of(message_class::state) + st.dropped_outbox_of(message_class::command));
   }

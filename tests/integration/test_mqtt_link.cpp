@@ -455,11 +455,21 @@ TEST_F(MqttLink, KeepsOutboxBoundedWhileDown) {
     link.publish(outbound_message{"out/alarms", "a" + std::to_string(i), false, message_class::alarm_event});
   }
   for (int i = 0; i < 100; ++i) link.publish(test_support::event_message("out/events", std::to_string(i)));
+  // Retained states do not count against the capacity: each topic keeps its latest.
+  for (int round = 0; round < 3; ++round) {
+    for (int z = 0; z < 50; ++z) {
+      link.publish(outbound_message{"out/zone/" + std::to_string(z) + "/state", std::to_string(round), true,
+                                    message_class::state});
+    }
+  }
   const mqtt_link_stats s = link.stats();
-  EXPECT_EQ(s.outbox_size, 20U);
+  EXPECT_EQ(s.outbox_size, 20U + 50U);
   EXPECT_EQ(s.dropped_outbox_of(message_class::event), 85U);
   EXPECT_EQ(s.dropped_outbox_of(message_class::alarm_event), 0U);
-  EXPECT_TRUE(log_->any_contains("outbox full (20 messages)"));
+  EXPECT_EQ(s.dropped_outbox_of(message_class::state), 0U);
+  EXPECT_EQ(s.superseded, 100U);
+  EXPECT_TRUE(log_->any_contains("outbox full (20 events and alarm events waiting; states and commands are kept"));
+  EXPECT_TRUE(log_->any_contains("dropping events first, alarm events last"));
   link.shutdown(k_stopped, 200ms);
 }
 

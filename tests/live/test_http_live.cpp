@@ -96,6 +96,9 @@ TEST(LiveHttp, MetricsFollowTheExpositionFormatAndCarryTheStates) {
   EXPECT_TRUE(m->value(R"(dewmargin_loop_setpoint_celsius{site="service-test",loop="loop-1"})"));
   EXPECT_GE(*m->value("dewmargin_messages_received_total"), 5.0);
   EXPECT_EQ(m->value("dewmargin_broker_connected"), 1.0);
+  // Drops of both directions are exposed, here none.
+  EXPECT_EQ(m->value("dewmargin_inbound_dropped_total"), 0.0);
+  EXPECT_EQ(m->value("dewmargin_outbox_dropped_total"), 0.0);
 
   // A bad reading counts (after the next once-a-second update of the counters).
   site.plant->publish("r/a/temp", "warm");

@@ -205,6 +205,8 @@ TEST_F(Service, SigtermStopsWithinFiveSecondsAndPublishesTheFinalStatus) {
       "dm/status", [](const received_message& m) { return as_json(m).value("state", "") == "offline"; }, 5s, from);
   ASSERT_TRUE(status);
   EXPECT_EQ(as_json(*status)["reason"], "stopped");
+  // The stop line counts the drops of both directions (none here).
+  EXPECT_NE(service_->log_text().find("delivered, 0 inbound drops, 0 outbox drops"), std::string::npos);
 }
 
 TEST_F(Service, StartsWithTheBrokerDownAndConnectsWhenItComes) {

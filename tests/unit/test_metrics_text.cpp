@@ -36,6 +36,7 @@ live_snapshot::copy sample_copy() {
   c.commands_rejected = 2;
   c.broker_reconnects = 1;
   c.store_write_errors = 0;
+  c.inbound_drops = 6;
   c.outbox_drops = 3;
   c.store_commits = 4;
   c.store_commit_us_total = 2500;
@@ -51,6 +52,8 @@ TEST(MetricsText, FollowsTheExpositionFormatRules) {
   EXPECT_EQ(parsed.types.at("dewmargin_zone_margin_kelvin"), "gauge");
   EXPECT_EQ(parsed.types.at("dewmargin_messages_received_total"), "counter");
   EXPECT_EQ(parsed.types.at("dewmargin_store_commit_seconds"), "summary");
+  EXPECT_EQ(parsed.types.at("dewmargin_inbound_dropped_total"), "counter");
+  EXPECT_EQ(parsed.types.at("dewmargin_outbox_dropped_total"), "counter");
 }
 
 TEST(MetricsText, CarriesTheStateValuesAndEscapesLabels) {
@@ -86,6 +89,7 @@ TEST(MetricsText, CarriesTheStateValuesAndEscapesLabels) {
   EXPECT_EQ(m.value("dewmargin_commands_rejected_total"), 2.0);
   EXPECT_EQ(m.value("dewmargin_broker_reconnects_total"), 1.0);
   EXPECT_EQ(m.value("dewmargin_store_write_errors_total"), 0.0);
+  EXPECT_EQ(m.value("dewmargin_inbound_dropped_total"), 6.0);
   EXPECT_EQ(m.value("dewmargin_outbox_dropped_total"), 3.0);
   EXPECT_EQ(m.value("dewmargin_store_commit_seconds_sum"), 0.0025);
   EXPECT_EQ(m.value("dewmargin_store_commit_seconds_count"), 4.0);

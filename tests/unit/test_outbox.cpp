@@ -1,5 +1,8 @@
 #include <gtest/gtest.h>
 
+#include <algorithm>
+#include <cstddef>
+#include <cstdint>
 #include <ostream>
 #include <string>
 #include <vector>
@@ -109,7 +112,7 @@ TEST_P(OutboxScript, EndsInExpectedState) {
   EXPECT_EQ(describe(box.pending_entries()), c.pending);
   EXPECT_EQ(box.in_flight(), c.in_flight);
   EXPECT_EQ(box.size(), c.pending.size() + c.in_flight);
-  EXPECT_LE(box.size(), box.capacity());
+  EXPECT_LE(box.unkeyed(), box.capacity());
   EXPECT_EQ(box.dropped(message_class::alarm_event), c.dropped.alarm_event);
   EXPECT_EQ(box.dropped(message_class::event), c.dropped.event);
   EXPECT_EQ(box.dropped(message_class::state), c.dropped.state);
@@ -167,24 +170,27 @@ INSTANTIATE_TEST_SUITE_P(Cases, OutboxScript, ::testing::Values(
     outbox_case{"LateDeliveryAfterLossStillRemoves", 10,
                 {push("e:ev=1"), push("e:ev=2"), take(2), lost(), deliver(0)},
                 {"ev=2"}, 0, {}, 0},
-    outbox_case{"FullDropsOldestEventFirst", 3,
+    outbox_case{"FullDropsOldestEventFirst", 2,
                 {push("e:ev=1"), push("s:z/a=1"), push("e:ev=2"), push("e:ev=3")},
                 {"z/a=1", "ev=2", "ev=3"}, 0, {0, 1, 0, 0}, 0},
-    outbox_case{"FullDropsStateWhenNoEventLeft", 3,
+    outbox_case{"FullOfEventsDropsOldestEventForAlarm", 2,
+                {push("e:ev=1"), push("e:ev=2"), push("a:al=1")},
+                {"ev=2", "al=1"}, 0, {0, 1, 0, 0}, 0},
+    outbox_case{"KeyedEntriesDoNotCountAgainstCapacity", 1,
                 {push("a:al=1"), push("s:z/a=1"), push("c:v/a=open"), push("s:z/b=1")},
-                {"al=1", "v/a=open", "z/b=1"}, 0, {0, 0, 1, 0}, 0},
-    outbox_case{"FullDropsCommandBeforeAlarm", 3,
+                {"al=1", "z/a=1", "v/a=open", "z/b=1"}, 0, {}, 0},
+    outbox_case{"FullOfAlarmsKeepsCommandsAndDropsOldestAlarm", 2,
                 {push("a:al=1"), push("c:v/a=open"), push("a:al=2"), push("a:al=3")},
-                {"al=1", "al=2", "al=3"}, 0, {0, 0, 0, 1}, 0},
+                {"v/a=open", "al=2", "al=3"}, 0, {1, 0, 0, 0}, 0},
     outbox_case{"FullOfAlarmsDropsOldestAlarmForNewAlarm", 2,
                 {push("a:al=1"), push("a:al=2"), push("a:al=3")},
                 {"al=2", "al=3"}, 0, {1, 0, 0, 0}, 0},
     outbox_case{"FullOfAlarmsDropsIncomingEvent", 2,
                 {push("a:al=1"), push("a:al=2"), push("e:ev=1")},
                 {"al=1", "al=2"}, 0, {0, 1, 0, 0}, 0},
-    outbox_case{"FullOfCommandsDropsIncomingState", 2,
-                {push("c:v/a=open"), push("c:v/b=open"), push("s:z/a=1")},
-                {"v/a=open", "v/b=open"}, 0, {0, 0, 1, 0}, 0},
+    outbox_case{"FullOfEventsStillQueuesStateAndCommand", 2,
+                {push("e:ev=1"), push("e:ev=2"), push("s:z/a=1"), push("c:v/a=open")},
+                {"ev=1", "ev=2", "z/a=1", "v/a=open"}, 0, {}, 0},
     outbox_case{"ReplacingWaitingStateNeedsNoRoom", 2,
                 {push("e:ev=1"), push("s:z/a=1"), push("s:z/a=2")},
                 {"ev=1", "z/a=2"}, 0, {}, 1},
@@ -194,9 +200,12 @@ INSTANTIATE_TEST_SUITE_P(Cases, OutboxScript, ::testing::Values(
     outbox_case{"FullWithInFlightDropsPendingOnly", 3,
                 {push("e:ev=1"), push("e:ev=2"), take(1), push("e:ev=3"), push("e:ev=4")},
                 {"ev=3", "ev=4"}, 1, {0, 1, 0, 0}, 0},
-    outbox_case{"DroppedIncomingStateLeavesInFlightOneIntact", 1,
-                {push("s:z/a=1"), take(1), push("s:z/a=2"), lost()},
-                {"z/a=1"}, 0, {0, 0, 1, 0}, 0},
+    outbox_case{"InFlightEventsCountAgainstCapacity", 1,
+                {push("e:ev=1"), take(1), push("e:ev=2"), push("s:z/a=1")},
+                {"z/a=1"}, 1, {0, 1, 0, 0}, 0},
+    outbox_case{"NewerStateAtCapacityIsQueuedAndInFlightOneDiscardedOnLoss", 1,
+                {push("e:ev=1"), push("s:z/a=1"), take(2), push("s:z/a=2"), lost()},
+                {"ev=1", "z/a=2"}, 0, {}, 1},
     outbox_case{"CapacityZeroIsTreatedAsOne", 0,
                 {push("e:ev=1"), push("e:ev=2")},
                 {"ev=2"}, 0, {0, 1, 0, 0}, 0}),
@@ -269,6 +278,110 @@ TEST(Outbox, CountsDropsPerClassUnderSustainedOverflow) {
   EXPECT_EQ(box.dropped(message_class::event), 1000U);
   EXPECT_EQ(box.dropped(message_class::alarm_event), 0U);
   EXPECT_EQ(box.dropped_total(), 1000U);
+}
+
+// Retained states are last-value-wins: a burst of them is coalesced by topic, never dropped,
+// however small the capacity for events is.
+TEST(Outbox, CoalescesKeyedBurstByTopicWithoutDrops) {
+  constexpr int k_topics = 10'000;
+  outbox box(100);
+  for (int round = 0; round < 2; ++round) {
+    for (int t = 0; t < k_topics; ++t) {
+      const char cls = t % 2 == 0 ? 's' : 'c';
+      ASSERT_TRUE(
+          box.push(parse_message(std::string(1, cls) + ":zone/" + std::to_string(t) + "=" + std::to_string(round)))
+              .has_value());
+    }
+  }
+  EXPECT_EQ(box.dropped_total(), 0U);
+  EXPECT_EQ(box.size(), static_cast<std::size_t>(k_topics));
+  EXPECT_EQ(box.keyed(), static_cast<std::size_t>(k_topics));
+  EXPECT_EQ(box.superseded(), static_cast<std::uint64_t>(k_topics));
+  const std::vector<outbox_entry> pending = box.pending_entries();
+  ASSERT_EQ(pending.size(), static_cast<std::size_t>(k_topics));
+  EXPECT_EQ(pending.front().message.topic, "zone/0");
+  EXPECT_EQ(pending.front().message.payload, "1") << "the newest value of each topic is kept";
+  EXPECT_EQ(pending.back().message.topic, "zone/9999");
+}
+
+// Among keyed traffic the events stay bounded, dropped event first, alarm event last.
+TEST(Outbox, BoundsEventsAmidKeyedTrafficInDropOrder) {
+  outbox box(100);
+  for (int t = 0; t < 1000; ++t) (void)box.push(parse_message("s:zone/" + std::to_string(t) + "=1"));
+  for (int i = 0; i < 40; ++i) (void)box.push(parse_message("a:al=" + std::to_string(i)));
+  for (int i = 0; i < 500; ++i) (void)box.push(parse_message("e:ev=" + std::to_string(i)));
+  EXPECT_EQ(box.unkeyed(), 100U);
+  EXPECT_EQ(box.keyed(), 1000U);
+  // 40 alarms and the newest 60 events are left: 440 events dropped, the oldest first.
+  EXPECT_EQ(box.dropped(message_class::event), 440U);
+  EXPECT_EQ(box.dropped(message_class::alarm_event), 0U);
+  std::vector<std::string> events_left;
+  for (const outbox_entry& e : box.pending_entries()) {
+    if (e.message.cls == message_class::event) events_left.push_back(e.message.payload);
+  }
+  ASSERT_EQ(events_left.size(), 60U);
+  EXPECT_EQ(events_left.front(), "440");
+  EXPECT_EQ(events_left.back(), "499");
+
+  // Alarm events push out the remaining events, then the oldest alarm events.
+  for (int i = 40; i < 200; ++i) (void)box.push(parse_message("a:al=" + std::to_string(i)));
+  EXPECT_EQ(box.unkeyed(), 100U);
+  EXPECT_EQ(box.dropped(message_class::event), 500U);
+  EXPECT_EQ(box.dropped(message_class::alarm_event), 100U);
+  EXPECT_EQ(box.pending_entries().back().message.payload, "199");
+  // An event meeting only alarm events is the one dropped.
+  EXPECT_FALSE(box.push(parse_message("e:ev=late")).has_value());
+  EXPECT_EQ(box.dropped(message_class::event), 501U);
+  EXPECT_EQ(box.dropped(message_class::state), 0U);
+  EXPECT_EQ(box.dropped(message_class::command), 0U);
+  EXPECT_EQ(box.keyed(), 1000U);
+}
+
+// Memory: whatever the traffic (sends, deliveries, failures, connection losses), the size
+// stays within keyed topics + capacity + max_in_flight (superseded keyed entries in flight).
+TEST(Outbox, SizeStaysWithinTopicsPlusCapacityUnderMixedTraffic) {
+  constexpr std::size_t k_topics = 100;
+  constexpr std::size_t k_capacity = 50;
+  constexpr std::size_t k_max_in_flight = 16;
+  outbox box(k_capacity);
+  std::uint32_t seed = 12345;  // a fixed linear congruential sequence: the same run every time
+  const auto next = [&seed](std::uint32_t bound) {
+    seed = seed * 1664525U + 1013904223U;
+    return (seed >> 8) % bound;
+  };
+  std::vector<outbox_id> in_flight;
+  std::size_t largest = 0;
+  for (int step = 0; step < 100'000; ++step) {
+    const std::uint32_t what = next(100);
+    if (what < 70) {
+      const std::uint32_t cls = next(4);
+      const std::string topic = "t/" + std::to_string(next(static_cast<std::uint32_t>(k_topics)));
+      (void)box.push(parse_message(std::string(1, "aesc"[cls]) + ":" + topic + "=" + std::to_string(step)));
+    } else if (what < 85) {
+      for (const outbox_entry& e : box.take_next_to_send(k_max_in_flight)) in_flight.push_back(e.id);
+    } else if (what < 97) {
+      if (!in_flight.empty()) {
+        const std::size_t i = next(static_cast<std::uint32_t>(in_flight.size()));
+        if (next(4) == 0) {
+          (void)box.on_send_failed(in_flight[i]);
+        } else {
+          (void)box.on_delivered(in_flight[i]);
+        }
+        in_flight.erase(in_flight.begin() + static_cast<std::ptrdiff_t>(i));
+      }
+    } else {
+      (void)box.on_connection_lost();
+      in_flight.clear();
+    }
+    ASSERT_LE(box.unkeyed(), k_capacity) << "step " << step;
+    ASSERT_LE(box.in_flight(), k_max_in_flight) << "step " << step;
+    ASSERT_LE(box.size(), k_topics + k_capacity + k_max_in_flight) << "step " << step;
+    largest = std::max(largest, box.size());
+  }
+  EXPECT_GT(largest, k_topics + k_capacity / 2) << "the traffic did fill the outbox well beyond the topics";
+  EXPECT_EQ(box.dropped(message_class::state), 0U);
+  EXPECT_EQ(box.dropped(message_class::command), 0U);
+  EXPECT_GT(box.dropped(message_class::event), 0U);
 }
 
 }  // namespace

@@ -6,9 +6,13 @@
 namespace dewmargin {
 namespace {
 
-// Drop order when full, least important first (see outbox.h).
-constexpr std::array<message_class, k_message_class_count> k_drop_order{
-    message_class::event, message_class::state, message_class::command, message_class::alarm_event};
+// Drop order when the unkeyed entries fill the capacity, least important first (see
+// outbox.h). Keyed classes are not in it: they are never dropped for lack of room.
+constexpr std::array<message_class, 2> k_drop_order{message_class::event, message_class::alarm_event};
+
+// See outbox_capacity_for_zones() in outbox.h for why these numbers.
+constexpr std::size_t k_min_capacity = 10'000;
+constexpr std::size_t k_unkeyed_per_zone = 8;
 
 constexpr std::size_t drop_rank(message_class cls) {
   for (std::size_t rank = 0; rank < k_drop_order.size(); ++rank) {
@@ -20,6 +24,10 @@ constexpr std::size_t drop_rank(message_class cls) {
 }
 
 }  // namespace
+
+std::size_t outbox_capacity_for_zones(std::size_t zones) {
+  return std::max(k_min_capacity, k_unkeyed_per_zone * zones);
+}
 
 outbox::outbox(std::size_t capacity_messages) : capacity_(std::max<std::size_t>(capacity_messages, 1)) {}
 
@@ -35,11 +43,11 @@ std::optional<outbox_id> outbox::push(outbound_message message) {
   }
 
   if (older_keyed && !(*older_keyed)->second.in_flight) {
-    // Replacing a waiting entry keeps the size: no room needed.
+    // Replacing a waiting entry keeps one entry per topic.
     erase(*older_keyed);
     ++superseded_;
     older_keyed.reset();
-  } else if (entries_.size() >= capacity_) {
+  } else if (!keyed && unkeyed_ >= capacity_) {
     const std::optional<outbox_id> victim = choose_victim(cls);
     if (!victim) {
       ++dropped_[class_index(cls)];
@@ -61,6 +69,8 @@ std::optional<outbox_id> outbox::push(outbound_message message) {
   mark_pending(id, it->second);
   if (keyed) {
     newest_keyed_[std::move(topic)] = id;
+  } else {
+    ++unkeyed_;
   }
   return id;
 }
@@ -174,6 +184,8 @@ void outbox::erase(slot_map::iterator it) {
     if (const auto k = newest_keyed_.find(s.message.topic); k != newest_keyed_.end() && k->second == id) {
       newest_keyed_.erase(k);
     }
+  } else {
+    --unkeyed_;
   }
   entries_.erase(it);
 }

@@ -143,8 +143,11 @@ std::string format_metrics(const live_snapshot::copy& s) {
   reconnects.sample({}, static_cast<double>(c.broker_reconnects));
   family store_errors("dewmargin_store_write_errors_total", "counter", "Failed history writes and maintenance steps.");
   store_errors.sample({}, static_cast<double>(c.store_write_errors));
+  family inbound_drops("dewmargin_inbound_dropped_total", "counter",
+                       "Received messages dropped because the inbound queue was full (commands never).");
+  inbound_drops.sample({}, static_cast<double>(c.inbound_drops));
   family drops("dewmargin_outbox_dropped_total", "counter",
-               "Messages dropped from the outbox while the broker was away.");
+               "Events dropped because the outbox's capacity for events was full (states and commands never).");
   drops.sample({}, static_cast<double>(c.outbox_drops));
   family commit("dewmargin_store_commit_seconds", "summary", "Time of the history's write transactions.");
   commit.sample({}, static_cast<double>(c.store_commit_us_total) / 1e6, "_sum");
@@ -153,10 +156,11 @@ std::string format_metrics(const live_snapshot::copy& s) {
   connected.sample({}, c.broker_connected ? 1 : 0);
 
   std::string out;
-  for (const family* f : {&info,         &margin,        &dew,           &surface,      &surface_rh, &band,   &to_wet,
-                          &alarm_active, &alarm_unacked, &alarm_shelved, &zone_ts,      &setpoint,   &supply, &cooling,
-                          &request,      &unit_dew,      &unit_fault,    &unit_unacked, &messages,   &bad,    &rejected,
-                          &reconnects,   &store_errors,  &drops,         &commit,       &connected}) {
+  for (const family* f :
+       {&info,         &margin,        &dew,           &surface,      &surface_rh, &band,     &to_wet,
+        &alarm_active, &alarm_unacked, &alarm_shelved, &zone_ts,      &setpoint,   &supply,   &cooling,
+        &request,      &unit_dew,      &unit_fault,    &unit_unacked, &messages,   &bad,      &rejected,
+        &reconnects,   &store_errors,  &inbound_drops, &drops,        &commit,     &connected}) {
     f->append_to(out);
   }
   return out;

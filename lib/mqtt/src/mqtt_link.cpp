@@ -673,9 +673,11 @@ struct mqtt_link::impl {
       outbox_drops_seen_ = dropped;
       reported_.outbox_drop = true;
     }
-    report(link_report_level::warning, "outbox full (" + std::to_string(options_.outbox_capacity) +
-                                           " messages): dropping the least important (events first), " +
-                                           std::to_string(dropped) + " dropped so far");
+    report(link_report_level::warning,
+           "outbox full (" + std::to_string(options_.outbox_capacity) +
+               " events and alarm events waiting; states and commands are kept, the latest per topic): dropping "
+               "events first, alarm events last, " +
+               std::to_string(dropped) + " dropped so far");
   }
 
   // A sink that throws is ignored: nothing may propagate into the library's thread, and

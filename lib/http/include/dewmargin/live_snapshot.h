@@ -21,7 +21,8 @@ struct service_counters {
   std::uint64_t commands_rejected = 0;      // operator commands answered with `rejected`
   std::uint64_t broker_reconnects = 0;      // connections after the first
   std::uint64_t store_write_errors = 0;     // failed history commits and maintenance steps
-  std::uint64_t outbox_drops = 0;           // messages dropped from the outbox while the broker was away
+  std::uint64_t inbound_drops = 0;          // received messages dropped from the full inbound queue
+  std::uint64_t outbox_drops = 0;           // events dropped from the full outbox (states, commands: never)
   std::uint64_t store_commits = 0;          // successful history commits...
   std::uint64_t store_commit_us_total = 0;  // ...and the time they took
   bool broker_connected = false;

@@ -9,7 +9,8 @@
 //   subscribe acknowledgement it publishes `online_payload` retained; shutdown() publishes
 //   a final status itself (a clean DISCONNECT suppresses the will).
 // - Outbound: publish() never blocks. Messages wait in an outbox (dewmargin/outbox.h) until
-//   their QoS 1 delivery completes; on connection loss the ones in flight are sent again
+//   their QoS 1 delivery completes (states and commands coalesced by topic, events and alarm
+//   events bounded by outbox_capacity); on connection loss the ones in flight are sent again
 //   (at least once: a subscriber may see a duplicate). The last retained message of each
 //   topic is kept and republished after every reconnect, since a broker restarted without
 //   persistence has forgotten it.
@@ -96,7 +97,7 @@ struct mqtt_link_options {
   std::vector<std::string> subscriptions;       // topic filters, subscribed at QoS 1
   std::vector<std::string> must_keep_prefixes;  // inbound topics never dropped ("<prefix>/cmd/")
   std::size_t inbound_capacity = 10000;         // messages
-  std::size_t outbox_capacity = 10000;          // messages
+  std::size_t outbox_capacity = 10000;          // events and alarm events; states and commands: one per topic
   // After a call of next_batch() that returned messages, the next call first lets up to this
   // long pass, so that at high rates the worker takes messages in bursts instead of being
   // woken once per message (a wake costs more than handling a reading). The delay it adds
