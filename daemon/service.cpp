@@ -219,7 +219,7 @@ class service {
     std::uint64_t outbox = 0;
     for (const auto d : st.dropped_outbox) outbox += d;
     log_budget_.count("inbound messages dropped (queue full)", st.dropped_inbound - link_seen_.dropped_inbound);
-    log_budget_.count("outbound messages dropped (outbox full)", outbox - outbox_drops_seen_);
+    log_budget_.count("events dropped (outbox full of events)", outbox - outbox_drops_seen_);
     outbox_drops_seen_ = outbox;
     link_seen_ = st;
     const std::uint64_t contained = containment_.dropped_total();

@@ -477,6 +477,10 @@ const text_case k_rule_cases[] = {
      7, 39, "zone 'z1': margin_alarm_k (1) must be below margin_warn_k (0.5), and margin_alarm_k comes from defaults"},
     {"merge_key", k_head + "<<: {site: t}\n" + k_loop + k_zone, 4, 1, "YAML merge keys ('<<') are not supported"},
     {"second_document", k_head + k_loop + k_zone + "---\nsite: other\n", 9, 1, "only one YAML document is expected"},
+    {"second_document_after_a_leading_marker", "# site\n---\n" + k_head + k_loop + k_zone + "---\nsite: other\n", 11, 1,
+     "only one YAML document is expected"},
+    {"second_document_after_an_end_marker", k_head + k_loop + k_zone + "...\nsite: other\n", 9, 1,
+     "only one YAML document is expected"},
     {"top_level_list", "- site: s\n", 1, 1, "the top level must be a map of sections"},
     {"empty_text", "", 1, 1, "the file holds no config"},
     // yaml-cpp's LoadAll() never returned on these (found by fuzzing): `check` hung, and so did a reload.
@@ -722,6 +726,34 @@ TEST(ConfigDiagnostic, FormatsWithAndWithoutPlace) {
   EXPECT_EQ((config_diagnostic{"a.yaml", 3, 7, "bad"}).to_string(), "a.yaml:3:7: bad");
   EXPECT_EQ((config_diagnostic{"a.yaml", 0, 0, "cannot read: x"}).to_string(), "a.yaml: cannot read: x");
   EXPECT_EQ((config_diagnostic{"a\x80\n.yaml", 1, 2, "bad"}).to_string(), "a\xEF\xBF\xBD\\n.yaml:1:2: bad");
+}
+
+// A marker before the first document, and a marker line inside a block scalar, are not a
+// second document (the loader parses a second time only when a marker follows content).
+TEST(ConfigLoader, ADocumentMarkerBeforeTheConfigIsNotASecondDocument) {
+  const auto r = load_config_text("# site\n---\n" + k_head + k_loop + k_zone, "m.yaml");
+  EXPECT_TRUE(r.ok()) << (r.errors.empty() ? "" : r.errors.front().to_string());
+  const auto indented = load_config_text(
+      "---\n" + k_head + "logging: {level: info}\n" + k_loop + k_zone + "# ---\n  # ...\n", "m.yaml");
+  EXPECT_TRUE(indented.ok()) << (indented.errors.empty() ? "" : indented.errors.front().to_string());
+}
+
+// Ten thousand zones take the same rules as one: duplicates are still found (the checks
+// are hash lookups now, not pairwise scans).
+TEST(ConfigLoader, DuplicatesAreFoundAmongManyZones) {
+  std::string zones = "zones:\n";
+  for (int z = 0; z < 2000; ++z) {
+    const std::string id = "z" + std::to_string(z);
+    zones += "  - {id: " + id + ", loop: la, air_temp: {topic: b/" + id + "/t}, humidity: {topic: b/" + id + "/h}}\n";
+  }
+  zones += "  - {id: z7, loop: la, air_temp: {topic: b/z9/t}, humidity: {topic: b/new/h}}\n";
+  const auto r = load_config_text(k_head + k_loop + zones, "many.yaml");
+  ASSERT_EQ(r.errors.size(), 2u);
+  EXPECT_NE(r.errors[0].message.find("duplicate zone id 'z7' (first defined at line 14)"), std::string::npos)
+      << r.errors[0].to_string();
+  EXPECT_NE(r.errors[1].message.find("topic 'b/z9/t' is already read by zone 'z9' air_temp (line 16)"),
+            std::string::npos)
+      << r.errors[1].to_string();
 }
 
 }  // namespace

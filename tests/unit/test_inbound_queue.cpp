@@ -1,6 +1,7 @@
 #include <gtest/gtest.h>
 
 #include <string>
+#include <thread>
 #include <vector>
 
 #include "dewmargin/inbound_queue.h"
@@ -116,6 +117,43 @@ TEST(InboundQueue, SustainedOverflowStaysAtCapacity) {
   std::size_t commands = 0;
   for (const auto& s : out) commands += s.rfind("svc/cmd/", 0) == 0 ? 1 : 0;
   EXPECT_EQ(commands, 10U) << "all ten commands survive";
+}
+
+}  // namespace
+}  // namespace dewmargin
+
+namespace dewmargin {
+namespace {
+
+TEST(InboundQueue, PopBatchTakesUpToMaxInArrivalOrderAcrossBothLanes) {
+  inbound_queue q(100, {"dm/cmd/"});
+  push_all(q, {"r/a=1", "dm/cmd/ack=x", "r/b=2", "r/c=3"});
+  std::vector<inbound_message> got;
+  EXPECT_EQ(q.pop_batch(got, 3, std::chrono::milliseconds(0)), 3u);
+  ASSERT_EQ(got.size(), 3u);
+  EXPECT_EQ(got[0].topic, "r/a");
+  EXPECT_EQ(got[1].topic, "dm/cmd/ack");  // a command keeps its place in the arrival order
+  EXPECT_EQ(got[2].topic, "r/b");
+  EXPECT_EQ(q.pop_batch(got, 3, std::chrono::milliseconds(0)), 1u);  // appended, not replaced
+  ASSERT_EQ(got.size(), 4u);
+  EXPECT_EQ(got[3].payload, "3");
+  EXPECT_EQ(q.counters().queued, 0u);
+}
+
+TEST(InboundQueue, PopBatchReturnsNothingWhenEmptyAndWaitsForAPush) {
+  inbound_queue q(10, {});
+  std::vector<inbound_message> got;
+  EXPECT_EQ(q.pop_batch(got, 5, std::chrono::milliseconds(0)), 0u);
+  EXPECT_EQ(q.pop_batch(got, 5, std::chrono::milliseconds(20)), 0u);
+  std::thread producer([&] {
+    std::this_thread::sleep_for(std::chrono::milliseconds(20));
+    q.push(inbound_message{"r/a", "24.0", false});
+  });
+  // Bounded: a generous timeout that a working queue never reaches.
+  EXPECT_EQ(q.pop_batch(got, 5, std::chrono::milliseconds(5000)), 1u);
+  producer.join();
+  ASSERT_EQ(got.size(), 1u);
+  EXPECT_EQ(got[0].payload, "24.0");
 }
 
 }  // namespace
