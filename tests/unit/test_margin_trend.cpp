@@ -138,5 +138,21 @@ TEST(MarginTrend, ClearForgetsEverything) {
   EXPECT_FALSE(trend.minutes_to_condensation(at_s(600)).has_value());
 }
 
+// Point times are kept as offsets from a base that moves up every few days: a service that
+// runs for weeks sees the same trend on day 40 as on day 1 (3 K at 0.1 K/min: 30 min).
+TEST(MarginTrend, KeepsWorkingAcrossWeeksOfUptime) {
+  margin_trend trend(k_window_s);
+  const double day_s = 86400.0;
+  for (int day = 0; day <= 40; ++day) {
+    const double end_s = day * day_s + 3600.0;
+    feed_line(trend, end_s - k_window_s, end_s, 10.0, 3.0, -0.1);
+    const auto minutes = trend.minutes_to_condensation(at_s(end_s));
+    ASSERT_TRUE(minutes.has_value()) << "day " << day;
+    EXPECT_NEAR(*minutes, 30.0, 0.01) << "day " << day;
+    feed_line(trend, end_s + 60.0, end_s + 60.0 + k_window_s, 10.0, 5.0, 0.0);  // then flat
+    EXPECT_FALSE(trend.minutes_to_condensation(at_s(end_s + 60.0 + k_window_s)).has_value()) << "day " << day;
+  }
+}
+
 }  // namespace
 }  // namespace dewmargin

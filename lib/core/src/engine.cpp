@@ -7,6 +7,14 @@ namespace dewmargin {
 engine::state::state(site_config c) : cfg(std::move(c)), events(cfg.site, cfg.publish.prefix + "/events") {}
 
 void engine::state::build() {
+  // Memory per zone: the config's vectors lose their growth slack before the state points
+  // into them, and the input slots are allocated once at their final size.
+  cfg.zones.shrink_to_fit();
+  cfg.loops.shrink_to_fit();
+  cfg.dehumidifiers.shrink_to_fit();
+  std::size_t slot_count = 3 * cfg.loops.size() + 2 * cfg.dehumidifiers.size();
+  for (const auto& zc : cfg.zones) slot_count += 3 + zc.humidity.size() + zc.surfaces.size();
+  inputs.reserve(slot_count);
   cmd_prefix = cfg.publish.prefix + "/cmd/";
   std::unordered_map<std::string, std::size_t> loop_index;
   loops.reserve(cfg.loops.size());

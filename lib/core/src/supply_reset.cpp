@@ -73,6 +73,10 @@ bool supply_reset::update(const reset_demand& demand, timestamp now) {
 }
 
 bool supply_reset::raise_for(double dew_point_c, const std::string& zone, timestamp now) {
+  // Called for every zone on every evaluation: the usual answer (no raise) is found without
+  // formatting the reason (compute_reset_target's target, clamped the same way).
+  const double target_c = std::min(std::max(dew_point_c + cfg_.reset_margin_k, cfg_.min_c), cfg_.max_c);
+  if (target_c <= setpoint_c_) return false;
   reset_demand d;
   d.max_dew_point_c = dew_point_c;
   d.governing_zone = zone;

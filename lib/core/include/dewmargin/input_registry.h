@@ -87,6 +87,8 @@ class input_registry {
  public:
   // `default_stale_s`: the zone's or loop's stale_after_s, for inputs without their own.
   std::size_t add(input_kind kind, const input_config& cfg, input_owner owner, double default_stale_s);
+  // Room for this many slots, so that adding them allocates once.
+  void reserve(std::size_t slots) { slots_.reserve(slots); }
 
   // The slots reading `topic`, or nullptr when no input uses it.
   [[nodiscard]] const std::vector<std::size_t>* slots_for(const std::string& topic) const;

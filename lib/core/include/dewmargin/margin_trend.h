@@ -25,12 +25,19 @@ class margin_trend {
   [[nodiscard]] std::optional<double> minutes_to_condensation(timestamp now) const;
 
  private:
+  // 8 bytes a point, not 16: one ring per zone was half of a zone's state. The time is kept
+  // in ms after base_ms_ (moved forward every few days), the margin as a float (7 digits of
+  // a margin of tens of kelvin: far below any sensor's resolution).
   struct point {
-    std::int64_t t_ms;
-    double margin_k;
+    std::int32_t dt_ms;
+    float margin_k;
   };
+  [[nodiscard]] std::int64_t t_ms_of(const point& p) const { return base_ms_ + p.dt_ms; }
+  void rebase(std::int64_t t_ms);
+
   double window_s_;
   double spacing_s_;
+  std::int64_t base_ms_ = 0;
   std::array<point, k_capacity> ring_{};
   std::size_t head_ = 0;   // index of the next write
   std::size_t count_ = 0;
