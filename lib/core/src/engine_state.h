@@ -145,7 +145,8 @@ struct engine::state {
   void check_staleness(timestamp now, engine_output& out);
 
   // engine_zones.cpp
-  zone_readings readings_of(const zone_rt& z, timestamp now);
+  const zone_readings& readings_of(const zone_rt& z, timestamp now);
+  zone_readings scratch_readings;  // readings_of() fills it; read before the next call
   void evaluate_zone(std::size_t zi, timestamp now, engine_output& out);
   void emit_band_event(const zone_rt& z, const band_step& step, bool switch_active, timestamp now, engine_output& out);
   bool move_valve(zone_rt& z, band b, timestamp now, engine_output& out);

@@ -25,11 +25,15 @@ std::optional<double> surface_rh_of(const zone_margin& m) {
 
 // A zone is judged only once each of its own inputs (air, every humidity, every surface;
 // the loop's supply for a zone without surfaces) has reported or gone missing.
-zone_readings engine::state::readings_of(const zone_rt& z, timestamp now) {
+// Fills the engine's one scratch zone_readings (every zone, every tick: its vectors keep
+// their capacity instead of two allocations per evaluation).
+const zone_readings& engine::state::readings_of(const zone_rt& z, timestamp now) {
   const double since_start_s = seconds_between(start, now);
   const auto awaited = [&](std::size_t id) { return inputs[id].awaited(since_start_s); };
   const input_slot& supply = inputs[loops[z.loop].supply_slot];
-  zone_readings r;
+  zone_readings& r = scratch_readings;
+  r.humidity_pct.clear();
+  r.surfaces_c.clear();
   r.air_temp_c = margin_input_of(inputs[z.air_slot], now);
   for (std::size_t id : z.humidity_slots) r.humidity_pct.push_back(margin_input_of(inputs[id], now));
   for (std::size_t id : z.surface_slots) r.surfaces_c.push_back(margin_input_of(inputs[id], now));
@@ -52,7 +56,12 @@ void engine::state::evaluate_zone(std::size_t zi, timestamp now, engine_output& 
   const bool switch_active = z.switch_slot && inputs[*z.switch_slot].active;
   const std::string* suppressor = suppressor_of(zi);
   const band_step step = step_band_and_alarm(z.condition, z.margin, switch_active, now, suppressor != nullptr);
-  z.suppressed_by = step.suppressed ? *suppressor : std::string();
+  // Every zone on every tick: no string assignment unless the suppressor changed.
+  if (!step.suppressed) {
+    z.suppressed_by.clear();
+  } else if (z.suppressed_by != *suppressor) {
+    z.suppressed_by = *suppressor;
+  }
   if (step.event_due) emit_band_event(z, step, switch_active, now, out);
   // The trend first: the valve closes ahead of condensation by it.
   if (z.margin.margin_k) z.trend.add(now, *z.margin.margin_k);

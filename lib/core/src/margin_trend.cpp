@@ -33,6 +33,7 @@ void margin_trend::rebase(std::int64_t t_ms) {
 }
 
 void margin_trend::add(timestamp t, double margin_k) {
+  memo_.reset();
   const std::int64_t t_ms = to_unix_ms(t);
   if (count_ == 0) base_ms_ = t_ms;
   if (t_ms < base_ms_) return;  // older than anything kept: out of order
@@ -55,8 +56,15 @@ void margin_trend::add(timestamp t, double margin_k) {
 }
 
 std::optional<double> margin_trend::minutes_to_condensation(timestamp now) const {
-  if (count_ == 0) return std::nullopt;
   const std::int64_t now_ms = to_unix_ms(now);
+  if (memo_ && memo_->now_ms == now_ms) return memo_->minutes;
+  const std::optional<double> minutes = fit_minutes(now_ms);
+  memo_ = memo{now_ms, minutes};
+  return minutes;
+}
+
+std::optional<double> margin_trend::fit_minutes(std::int64_t now_ms) const {
+  if (count_ == 0) return std::nullopt;
   const auto window_ms = static_cast<std::int64_t>(window_s_ * 1000.0);
   const point& newest = ring_[(head_ + k_capacity - 1) % k_capacity];
   if (newest.margin_k <= 0.0F) return 0.0;

@@ -18,7 +18,10 @@ class margin_trend {
   explicit margin_trend(double window_s) : window_s_(window_s), spacing_s_(window_s / 60.0) {}
 
   void add(timestamp t, double margin_k);
-  void clear() { count_ = 0; }
+  void clear() {
+    count_ = 0;
+    memo_.reset();
+  }
 
   // Minutes until the margin reaches zero at the current rate of fall; 0 when it is
   // already at or below zero; empty when it is not falling or data span too little.
@@ -34,11 +37,19 @@ class margin_trend {
   };
   [[nodiscard]] std::int64_t t_ms_of(const point& p) const { return base_ms_ + p.dt_ms; }
   void rebase(std::int64_t t_ms);
+  [[nodiscard]] std::optional<double> fit_minutes(std::int64_t now_ms) const;
 
   double window_s_;
   double spacing_s_;
   std::int64_t base_ms_ = 0;
   std::array<point, k_capacity> ring_{};
+  // The last answer of minutes_to_condensation and its time: a zone's evaluation asks twice
+  // (its valve, its state) for the same instant. add() and clear() forget it.
+  struct memo {
+    std::int64_t now_ms;
+    std::optional<double> minutes;
+  };
+  mutable std::optional<memo> memo_;
   std::size_t head_ = 0;   // index of the next write
   std::size_t count_ = 0;
 };
