@@ -403,7 +403,9 @@ int run_latency(const latency_options& o) {
   }
   std::vector<double> rtt_ms;
   int wet = 1;
-  for (int i = 0; i < o.samples; ++i) {
+  // The first round trips warm up the connections and caches: not counted.
+  constexpr int k_warm_up = 10;
+  for (int i = -k_warm_up; i < o.samples; ++i) {
     const int before = answers.load();
     const auto t0 = clock_type::now();
     if (echo) {
@@ -417,7 +419,7 @@ int run_latency(const latency_options& o) {
       std::fprintf(stderr, "loadgen: no answer to probe %d within 5 s\n", i);
       return 1;
     }
-    rtt_ms.push_back(seconds_since(t0) * 1e3);
+    if (i >= 0) rtt_ms.push_back(seconds_since(t0) * 1e3);
     lock.unlock();
     std::this_thread::sleep_for(std::chrono::duration<double>(o.gap_s));
   }
