@@ -519,7 +519,10 @@ struct mqtt_link::impl {
 
   void on_connected(const std::string& /*cause*/) {
     // Before anything is published on the new connection (tcp_nodelay.h: the 40 ms floor).
-    (void)set_tcp_nodelay_to_peer(broker_port_);
+    if (set_tcp_nodelay_to_peer(broker_port_) == 0) {
+      report(link_report_level::info, "TCP no-delay could not be set on the connection to " + options_.broker.uri +
+                                          " (/proc/self/fd unreadable?): small messages may wait up to 40 ms");
+    }
     std::uint64_t epoch = 0;
     std::uint64_t connection_number = 0;
     std::size_t queued_again = 0;
