@@ -357,6 +357,7 @@ struct latency_options {
   std::string target = "service";
   std::string prefix = "dm";
   double gap_s = 0.02;
+  double show_slow_ms = 0;  // > 0: print every round trip slower than this (with its time)
 };
 
 double percentile(std::vector<double> v, double p) {
@@ -420,6 +421,13 @@ int run_latency(const latency_options& o) {
       return 1;
     }
     if (i >= 0) rtt_ms.push_back(seconds_since(t0) * 1e3);
+    if (o.show_slow_ms > 0 && i >= 0 && rtt_ms.back() > o.show_slow_ms) {
+      const auto wall_ms = std::chrono::duration_cast<std::chrono::milliseconds>(
+                               std::chrono::system_clock::now().time_since_epoch())
+                               .count();
+      std::fprintf(stderr, "slow round trip %d: %.2f ms, answered at wall ms %lld (ms of the second: %lld)\n", i,
+                   rtt_ms.back(), static_cast<long long>(wall_ms), static_cast<long long>(wall_ms % 1000));
+    }
     lock.unlock();
     std::this_thread::sleep_for(std::chrono::duration<double>(o.gap_s));
   }
@@ -493,6 +501,7 @@ int main(int argc, char** argv) {
   lat->add_option("--samples", l.samples);
   lat->add_option("--target", l.target)->check(CLI::IsMember({"echo", "service"}));
   lat->add_option("--prefix", l.prefix);
+  lat->add_option("--show-slow-ms", l.show_slow_ms, "print each round trip slower than this, with its wall time");
 
   long sub_count = 100000;
   int sub_qos = 1;
