@@ -10,6 +10,7 @@
 #include <string>
 #include <vector>
 
+#include "bench_site.h"
 #include "dewmargin/config.h"
 #include "dewmargin/engine.h"
 
@@ -17,39 +18,6 @@ namespace {
 
 using dewmargin::engine;
 using dewmargin::engine_output;
-using dewmargin::input_config;
-
-input_config input(const std::string& topic) {
-  input_config c;
-  c.topic = topic;
-  return c;
-}
-
-dewmargin::site_config site(int zones) {
-  dewmargin::site_config s;
-  s.site = "bench";
-  s.broker.client_id = "bench";
-  s.publish.prefix = "dm";
-  const int loops = std::max(1, zones / 100);
-  for (int l = 0; l < loops; ++l) {
-    dewmargin::loop_config lc;
-    lc.id = "loop-" + std::to_string(l);
-    lc.supply_temp = input("plant/" + lc.id + "/supply");
-    lc.setpoint.topic = "plant/" + lc.id + "/sp";
-    s.loops.push_back(lc);
-  }
-  for (int z = 0; z < zones; ++z) {
-    dewmargin::zone_config zc;
-    zc.id = "z" + std::to_string(z);
-    zc.loop = "loop-" + std::to_string(z % loops);
-    zc.air_temp = input("b/" + zc.id + "/temp");
-    zc.humidity.push_back(input("b/" + zc.id + "/rh"));
-    zc.surfaces.push_back(input("b/" + zc.id + "/surface"));
-    zc.valve = dewmargin::valve_config{"b/" + zc.id + "/valve", "open", "closed", 600.0};
-    s.zones.push_back(zc);
-  }
-  return s;
-}
 
 long resident_kb() {
   rusage u{};
@@ -63,7 +31,7 @@ int main(int argc, char** argv) {
   const int zones = argc > 1 ? std::atoi(argv[1]) : 1000;
   const long readings = argc > 2 ? std::atol(argv[2]) : 2'000'000;
   const long before_kb = resident_kb();
-  engine core(site(zones));
+  engine core(dewmargin::bench::bench_site(zones));
   engine_output out;
   auto now = dewmargin::from_unix_ms(1'800'000'000'000);
   core.begin(now, {}, out);
@@ -76,7 +44,8 @@ int main(int argc, char** argv) {
   for (int z = 0; z < zones; ++z) {
     for (const char* what : {"temp", "rh", "surface"}) topics.push_back("b/z" + std::to_string(z) + "/" + what);
   }
-  const char* payloads[3][4] = {{"24.0", "24.1", "24.2", "24.1"}, {"50", "51", "52", "51"}, {"17.0", "16.9", "16.8", "16.9"}};
+  const char* payloads[3][4] = {
+      {"24.0", "24.1", "24.2", "24.1"}, {"50", "51", "52", "51"}, {"17.0", "16.9", "16.8", "16.9"}};
   std::vector<double> per_million_s;
   std::size_t published = 0;
   const auto start = std::chrono::steady_clock::now();

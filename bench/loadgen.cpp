@@ -16,6 +16,7 @@
 // It prints human lines and `RESULT key value unit` lines for bench/run. The probe and echo
 // clients set TCP no-delay on their sockets (tcp_nodelay.h), as the service does.
 #include <fcntl.h>
+#include <mqtt/async_client.h>
 #include <sys/resource.h>
 #include <sys/socket.h>
 #include <unistd.h>
@@ -28,7 +29,6 @@
 #include <cstdio>
 #include <deque>
 #include <fstream>
-#include <mqtt/async_client.h>
 #include <mutex>
 #include <nlohmann/json.hpp>
 #include <sstream>
@@ -74,8 +74,8 @@ void write_site(const std::string& path, int zones, int port, const std::string&
   if (http_port > 0) y << "http: { listen: \"127.0.0.1:" << http_port << "\" }\n";
   y << "loops:\n";
   for (int l = 0; l < loop_count(zones); ++l) {
-    y << "  - { id: loop" << l << ", supply_temp: { topic: lg/loop" << l << "/supply }, setpoint: { topic: lg/loop"
-      << l << "/sp, min_c: 15.0, max_c: 20.0 } }\n";
+    y << "  - { id: loop" << l << ", supply_temp: { topic: lg/loop" << l << "/supply }, setpoint: { topic: lg/loop" << l
+      << "/sp, min_c: 15.0, max_c: 20.0 } }\n";
   }
   y << "  - { id: probe-loop, supply_temp: { topic: lg/probe/supply }, setpoint: { topic: lg/probe/sp, min_c: 15.0, "
        "max_c: 20.0 } }\n";
@@ -239,7 +239,8 @@ struct throughput_options {
 
 int run_throughput(const throughput_options& o) {
   const reading_plan plan{o.zones, loop_count(o.zones)};
-  const std::string run_id = std::to_string(::getpid()) + "-" + std::to_string(clock_type::now().time_since_epoch().count() % 1000000);
+  const std::string run_id =
+      std::to_string(::getpid()) + "-" + std::to_string(clock_type::now().time_since_epoch().count() % 1000000);
   std::atomic<long> received{0};
   std::atomic<int> sentinels{0};
   std::mutex m;
@@ -265,7 +266,6 @@ int run_throughput(const throughput_options& o) {
   });
   watcher->subscribe(bare ? "lg-done/#" : o.prefix + "/events", 1)->wait();
 
-
   const proc_sample before = sample_process(o.service_pid);
   const auto t0 = clock_type::now();
   std::vector<std::thread> threads;
@@ -284,9 +284,8 @@ int run_throughput(const throughput_options& o) {
   bool done = false;
   {
     std::unique_lock<std::mutex> lock(m);
-    done = cv.wait_for(lock, std::chrono::duration<double>(o.timeout_s), [&] {
-      return bare ? received.load() >= o.count : sentinels.load() >= o.connections;
-    });
+    done = cv.wait_for(lock, std::chrono::duration<double>(o.timeout_s),
+                       [&] { return bare ? received.load() >= o.count : sentinels.load() >= o.connections; });
   }
   const double elapsed_s = seconds_since(t0);
   const proc_sample after = sample_process(o.service_pid);
@@ -296,8 +295,9 @@ int run_throughput(const throughput_options& o) {
     return 1;
   }
   const double rate = static_cast<double>(o.count) / elapsed_s;
-  std::printf("%s: %ld readings at QoS %d over %d connections, %d zones: %.0f msg/s (published in %.2f s, taken in %.2f s)\n",
-              o.target.c_str(), o.count, o.qos, o.connections, o.zones, rate, publish_s, elapsed_s);
+  std::printf(
+      "%s: %ld readings at QoS %d over %d connections, %d zones: %.0f msg/s (published in %.2f s, taken in %.2f s)\n",
+      o.target.c_str(), o.count, o.qos, o.connections, o.zones, rate, publish_s, elapsed_s);
   result("rate_msg_s", rate, "msg/s");
   result("elapsed_s", elapsed_s, "s");
   if (o.service_pid > 0) {
@@ -378,9 +378,8 @@ int run_latency(const latency_options& o) {
   if (echo) {
     echoer = std::move(clients.back());
     auto* e = echoer.get();
-    echoer->set_message_callback([e](mqtt::const_message_ptr msg) {
-      e->publish("lg/echo/out", msg->get_payload_str(), 1, false);
-    });
+    echoer->set_message_callback(
+        [e](mqtt::const_message_ptr msg) { e->publish("lg/echo/out", msg->get_payload_str(), 1, false); });
     echoer->subscribe("lg/echo/in", 1)->wait();
   }
   std::mutex m;
@@ -422,9 +421,9 @@ int run_latency(const latency_options& o) {
     }
     if (i >= 0) rtt_ms.push_back(seconds_since(t0) * 1e3);
     if (o.show_slow_ms > 0 && i >= 0 && rtt_ms.back() > o.show_slow_ms) {
-      const auto wall_ms = std::chrono::duration_cast<std::chrono::milliseconds>(
-                               std::chrono::system_clock::now().time_since_epoch())
-                               .count();
+      const auto wall_ms =
+          std::chrono::duration_cast<std::chrono::milliseconds>(std::chrono::system_clock::now().time_since_epoch())
+              .count();
       std::fprintf(stderr, "slow round trip %d: %.2f ms, answered at wall ms %lld (ms of the second: %lld)\n", i,
                    rtt_ms.back(), static_cast<long long>(wall_ms), static_cast<long long>(wall_ms % 1000));
     }
@@ -432,8 +431,8 @@ int run_latency(const latency_options& o) {
     std::this_thread::sleep_for(std::chrono::duration<double>(o.gap_s));
   }
   const double p50 = percentile(rtt_ms, 0.5), p99 = percentile(rtt_ms, 0.99), mx = percentile(rtt_ms, 1.0);
-  std::printf("%s round trip over %d samples: p50 %.2f ms, p99 %.2f ms, max %.2f ms\n", o.target.c_str(), o.samples, p50,
-              p99, mx);
+  std::printf("%s round trip over %d samples: p50 %.2f ms, p99 %.2f ms, max %.2f ms\n", o.target.c_str(), o.samples,
+              p50, p99, mx);
   result("rtt_p50_ms", p50, "ms");
   result("rtt_p99_ms", p99, "ms");
   result("rtt_max_ms", mx, "ms");

@@ -22,6 +22,7 @@
 #include <string>
 #include <vector>
 
+#include "bench_site.h"
 #include "dewmargin/config.h"
 #include "dewmargin/engine.h"
 #include "dewmargin/input_decoder.h"
@@ -100,38 +101,6 @@ void zone_evaluation(benchmark::State& state) {
 BENCHMARK(zone_evaluation);
 
 // ---- engine::on_message for one bare-number reading ------------------------------------
-dewmargin::input_config input(const std::string& topic) {
-  dewmargin::input_config c;
-  c.topic = topic;
-  return c;
-}
-
-// A site of `zones` zones (air, humidity, surface, valve each), one loop per 100 zones.
-dewmargin::site_config bench_site(int zones) {
-  dewmargin::site_config s;
-  s.site = "bench";
-  s.broker.client_id = "bench";
-  s.publish.prefix = "dm";
-  const int loops = std::max(1, zones / 100);
-  for (int l = 0; l < loops; ++l) {
-    dewmargin::loop_config lc;
-    lc.id = "loop-" + std::to_string(l);
-    lc.supply_temp = input("plant/" + lc.id + "/supply");
-    lc.setpoint.topic = "plant/" + lc.id + "/sp";
-    s.loops.push_back(lc);
-  }
-  for (int z = 0; z < zones; ++z) {
-    dewmargin::zone_config zc;
-    zc.id = "z" + std::to_string(z);
-    zc.loop = "loop-" + std::to_string(z % loops);
-    zc.air_temp = input("b/" + zc.id + "/temp");
-    zc.humidity.push_back(input("b/" + zc.id + "/rh"));
-    zc.surfaces.push_back(input("b/" + zc.id + "/surface"));
-    zc.valve = dewmargin::valve_config{"b/" + zc.id + "/valve", "open", "closed", 600.0};
-    s.zones.push_back(zc);
-  }
-  return s;
-}
 
 // Each zone's three inputs in turn, one reading per simulated millisecond, values that wander a
 // little (a safe margin throughout, as most readings are). The once-a-second tick runs outside
@@ -139,7 +108,7 @@ dewmargin::site_config bench_site(int zones) {
 // reading, as the shell does once it has handed the output on.
 void engine_reading(benchmark::State& state) {
   const int zones = static_cast<int>(state.range(0));
-  dewmargin::engine core(bench_site(zones));
+  dewmargin::engine core(dewmargin::bench::bench_site(zones));
   dewmargin::engine_output out;
   timestamp now = k_start;
   core.begin(now, {}, out);
@@ -186,7 +155,7 @@ BENCHMARK(engine_reading)->ArgName("zones")->Arg(10)->Arg(1000);
 
 // ---- payload decoding -------------------------------------------------------------------
 void decode_bare(benchmark::State& state) {
-  const dewmargin::input_config cfg = input("b/z1/temp");
+  const dewmargin::input_config cfg = dewmargin::bench::bench_input("b/z1/temp");
   std::array<std::string, k_ring> payloads;
   for (std::size_t i = 0; i < k_ring; ++i) {
     char buf[16];
@@ -205,7 +174,7 @@ BENCHMARK(decode_bare);
 
 // A multi-sensor's JSON document, read at a JSON pointer (config `field`).
 void decode_json(benchmark::State& state) {
-  dewmargin::input_config cfg = input("b/z1/sensor");
+  dewmargin::input_config cfg = dewmargin::bench::bench_input("b/z1/sensor");
   cfg.field = "/air/temp_c";
   std::array<std::string, k_ring> payloads;
   for (std::size_t i = 0; i < k_ring; ++i) {

@@ -733,8 +733,8 @@ TEST(ConfigDiagnostic, FormatsWithAndWithoutPlace) {
 TEST(ConfigLoader, ADocumentMarkerBeforeTheConfigIsNotASecondDocument) {
   const auto r = load_config_text("# site\n---\n" + k_head + k_loop + k_zone, "m.yaml");
   EXPECT_TRUE(r.ok()) << (r.errors.empty() ? "" : r.errors.front().to_string());
-  const auto indented = load_config_text(
-      "---\n" + k_head + "logging: {level: info}\n" + k_loop + k_zone + "# ---\n  # ...\n", "m.yaml");
+  const auto indented =
+      load_config_text("---\n" + k_head + "logging: {level: info}\n" + k_loop + k_zone + "# ---\n  # ...\n", "m.yaml");
   EXPECT_TRUE(indented.ok()) << (indented.errors.empty() ? "" : indented.errors.front().to_string());
 }
 

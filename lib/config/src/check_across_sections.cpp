@@ -96,11 +96,10 @@ void check_inputs(std::vector<input_record> inputs, const std::vector<output_rec
         break;
       }
       if (before_this.field.empty() != in.field.empty()) {
-        diag.error(in.topic_at, "topic '" + in.topic + "' is read as " +
-                                    (before_this.field.empty() ? "a bare value" : "JSON") + " by " +
-                                    before_this.owner + " (" + line_of(before_this.topic_at) + ") and as " +
-                                    (in.field.empty() ? "a bare value" : "JSON") +
-                                    " here; one topic carries one kind of payload");
+        diag.error(in.topic_at,
+                   "topic '" + in.topic + "' is read as " + (before_this.field.empty() ? "a bare value" : "JSON") +
+                       " by " + before_this.owner + " (" + line_of(before_this.topic_at) + ") and as " +
+                       (in.field.empty() ? "a bare value" : "JSON") + " here; one topic carries one kind of payload");
         break;
       }
     }

@@ -50,7 +50,7 @@ class margin_trend {
     std::optional<double> minutes;
   };
   mutable std::optional<memo> memo_;
-  std::size_t head_ = 0;   // index of the next write
+  std::size_t head_ = 0;  // index of the next write
   std::size_t count_ = 0;
 };
 

@@ -49,8 +49,7 @@ class inbound_queue {
   // Waits up to timeout for a message, then moves up to max_messages of those queued, in
   // arrival order, to the end of out under one lock (the consumer takes a burst at the cost
   // of one hand-over). Returns how many it moved.
-  std::size_t pop_batch(std::vector<inbound_message>& out, std::size_t max_messages,
-                        std::chrono::milliseconds timeout);
+  std::size_t pop_batch(std::vector<inbound_message>& out, std::size_t max_messages, std::chrono::milliseconds timeout);
 
   [[nodiscard]] bool must_keep(const std::string& topic) const;
   [[nodiscard]] inbound_queue_counters counters() const;

@@ -103,8 +103,8 @@ struct mqtt_link_options {
   // woken once per message (a wake costs more than handling a reading). The delay it adds
   // to a reading is at most this, and only while messages keep coming.
   std::chrono::microseconds inbound_gather{1000};
-  std::size_t max_in_flight = 64;               // about 100 QoS 1 in flight gives Paho error -12
-  std::chrono::seconds reconnect_min{1};        // back-off bounds; the library counts whole seconds
+  std::size_t max_in_flight = 64;         // about 100 QoS 1 in flight gives Paho error -12
+  std::chrono::seconds reconnect_min{1};  // back-off bounds; the library counts whole seconds
   std::chrono::seconds reconnect_max{30};
   std::chrono::seconds connect_timeout{10};
   std::function<void(link_report_level, const std::string&)> report;  // may be empty
