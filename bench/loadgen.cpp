@@ -517,7 +517,14 @@ int main(int argc, char** argv) {
   ready->add_option("--prefix", prefix);
   ready->add_option("--timeout", ready_timeout_s);
 
-  CLI11_PARSE(app, argc, argv);
+  // Bad usage exits 2 with one line, as the project's other commands do.
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::ParseError& e) {
+    if (e.get_exit_code() == 0) return app.exit(e);
+    std::fprintf(stderr, "loadgen: %s (see --help)\n", e.what());
+    return 2;
+  }
   try {
     if (*site) {
       write_site(dir + "/site.yaml", zones, port, dir, prefix, http_port);
