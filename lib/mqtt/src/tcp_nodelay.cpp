@@ -10,6 +10,8 @@
 #include <cstdlib>
 #include <string>
 
+#include "tcp_probe.h"
+
 namespace dewmargin {
 namespace {
 
@@ -51,23 +53,11 @@ int set_tcp_nodelay_to_peer(int peer_port) {
 }
 
 int broker_uri_port(const std::string& uri) {
-  const auto scheme_end = uri.find("://");
-  if (scheme_end == std::string::npos) return 0;
-  const std::string scheme = uri.substr(0, scheme_end);
-  const bool tls = scheme == "ssl" || scheme == "mqtts" || scheme == "wss";
-  std::string rest = uri.substr(scheme_end + 3);
-  if (const auto slash = rest.find('/'); slash != std::string::npos) rest.resize(slash);
-  std::string::size_type colon = std::string::npos;
-  if (!rest.empty() && rest.front() == '[') {
-    const auto close = rest.find(']');
-    if (close != std::string::npos && close + 1 < rest.size() && rest[close + 1] == ':') colon = close + 1;
-  } else {
-    colon = rest.rfind(':');
-  }
-  if (colon == std::string::npos) return tls ? 8883 : 1883;
+  const auto where = detail::split_broker_uri(uri);  // the one reading of a broker URI
+  if (!where) return 0;
   char* end = nullptr;
-  const long port = std::strtol(rest.c_str() + colon + 1, &end, 10);
-  if (end == rest.c_str() + colon + 1 || *end != '\0' || port < 1 || port > 65535) return 0;
+  const long port = std::strtol(where->port.c_str(), &end, 10);
+  if (end == where->port.c_str() || *end != '\0' || port < 1 || port > 65535) return 0;
   return static_cast<int>(port);
 }
 

@@ -18,7 +18,8 @@ std::optional<host_port> split_broker_uri(const std::string& uri) {
   std::string rest = uri.substr(scheme_end + 3);
   rest = rest.substr(0, rest.find('/'));
   host_port hp;
-  hp.port = scheme == "ssl" ? "8883" : "1883";
+  const bool tls = scheme == "ssl" || scheme == "mqtts" || scheme == "wss";
+  hp.port = tls ? "8883" : "1883";
   if (!rest.empty() && rest.front() == '[') {
     const auto close = rest.find(']');
     if (close == std::string::npos) return std::nullopt;

@@ -13,7 +13,7 @@ struct host_port {
   std::string port;
 };
 
-// "ssl://host:8883", "tcp://[::1]:1883"; the port defaults to 1883 (tcp) or 8883 (ssl).
+// "ssl://host:8883", "tcp://[::1]:1883"; the port defaults to 1883 (tcp, mqtt) or 8883 (ssl, mqtts).
 std::optional<host_port> split_broker_uri(const std::string& uri);
 
 // True when a TCP connection to host:port succeeds within timeout.
