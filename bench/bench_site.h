@@ -3,6 +3,7 @@
 // zones with air, humidity and surface inputs and a valve each, one loop per 100 zones.
 #include <algorithm>
 #include <string>
+#include <vector>
 
 #include "dewmargin/config.h"
 
@@ -39,5 +40,19 @@ inline site_config bench_site(int zones) {
   }
   return s;
 }
+
+// The bench site's zone input topics, each zone's three in turn (air, humidity, surface).
+inline std::vector<std::string> bench_zone_topics(int zones) {
+  std::vector<std::string> topics;
+  for (int z = 0; z < zones; ++z) {
+    for (const char* what : {"temp", "rh", "surface"}) topics.push_back("b/z" + std::to_string(z) + "/" + what);
+  }
+  return topics;
+}
+
+// Payloads for those topics (index: topic % 3, then a step of 4): values that wander a little
+// around a safe margin, as most readings do.
+inline constexpr const char* k_bench_payloads[3][4] = {
+    {"24.0", "24.1", "24.2", "24.1"}, {"50", "51", "52", "51"}, {"17.0", "16.9", "16.8", "16.9"}};
 
 }  // namespace dewmargin::bench

@@ -40,12 +40,8 @@ int main(int argc, char** argv) {
   // Readings as a real feed would send them: each zone's three inputs in turn, values that
   // wander a little, one supply reading per loop every 100 readings; 2,000 readings per
   // simulated second (the tick runs once per simulated second).
-  std::vector<std::string> topics;
-  for (int z = 0; z < zones; ++z) {
-    for (const char* what : {"temp", "rh", "surface"}) topics.push_back("b/z" + std::to_string(z) + "/" + what);
-  }
-  const char* payloads[3][4] = {
-      {"24.0", "24.1", "24.2", "24.1"}, {"50", "51", "52", "51"}, {"17.0", "16.9", "16.8", "16.9"}};
+  const std::vector<std::string> topics = dewmargin::bench::bench_zone_topics(zones);
+  const auto& payloads = dewmargin::bench::k_bench_payloads;
   std::vector<double> per_million_s;
   std::size_t published = 0;
   const auto start = std::chrono::steady_clock::now();

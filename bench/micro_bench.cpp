@@ -113,12 +113,8 @@ void engine_reading(benchmark::State& state) {
   timestamp now = k_start;
   core.begin(now, {}, out);
   out.clear();
-  std::vector<std::string> topics;
-  for (int z = 0; z < zones; ++z) {
-    for (const char* what : {"temp", "rh", "surface"}) topics.push_back("b/z" + std::to_string(z) + "/" + what);
-  }
-  const char* payloads[3][4] = {
-      {"24.0", "24.1", "24.2", "24.1"}, {"50", "51", "52", "51"}, {"17.0", "16.9", "16.8", "16.9"}};
+  const std::vector<std::string> topics = dewmargin::bench::bench_zone_topics(zones);
+  const auto& payloads = dewmargin::bench::k_bench_payloads;
   // Every input reports once before timing, so that the zones are judged (not waiting).
   for (std::size_t t = 0; t < topics.size(); ++t) core.on_message(topics[t], payloads[t % 3][0], now, out);
   for (int l = 0; l < std::max(1, zones / 100); ++l) {
