@@ -88,6 +88,23 @@ TEST_F(MqttLinkTls, ConnectsByHostName) {
   link.shutdown(k_stopped, 5s);
 }
 
+// mqtts:// is the other spelling of ssl:// the config accepts: it must get the same TLS
+// options (CA, verification), not a connect that fails for want of them.
+TEST_F(MqttLinkTls, ConnectsWithTheMqttsScheme) {
+  mosquitto_broker broker(tls_broker());
+  broker.start();
+  std::string uri = broker.tls_uri("127.0.0.1");
+  ASSERT_EQ(uri.compare(0, 6, "ssl://"), 0) << uri;
+  uri = "mqtts://" + uri.substr(6);
+  mqtt_link link = make_tls_link(broker, uri, broker_tls_defaults_.password, broker.tls().ca_cert.string());
+  link.start();
+  ASSERT_TRUE(eventually([&] { return link.ready(); }, 15s)) << link.last_connect_error() << "\n" << broker.log_text();
+  mqtt_test_client plain(broker.uri(), {"out/#"});
+  link.publish(test_support::state_message("out/zone/a/state", "over-mqtts"));
+  EXPECT_TRUE(plain.wait_for_payload("out/zone/a/state", "over-mqtts", 5s));
+  link.shutdown(k_stopped, 5s);
+}
+
 TEST_F(MqttLinkTls, WrongPasswordFailsWithClearError) {
   mosquitto_broker broker(tls_broker());
   broker.start();

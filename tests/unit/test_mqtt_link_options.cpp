@@ -51,6 +51,23 @@ TEST_F(MqttLinkCreate, AcceptsValidOptions) {
   EXPECT_EQ(link.value().last_connect_error(), "");
 }
 
+// The link takes every scheme the config reader takes (tests/unit/test_broker_uri.cpp).
+TEST_F(MqttLinkCreate, AcceptsEverySchemeTheConfigAccepts) {
+  for (const char* uri : {"tcp://127.0.0.1:1883", "mqtt://127.0.0.1:1883"}) {
+    mqtt_link_options o = valid();
+    o.broker.uri = uri;
+    auto link = mqtt_link::create(o);
+    EXPECT_TRUE(link.ok()) << uri << ": " << link.err().message;
+  }
+  for (const char* uri : {"ssl://127.0.0.1:8883", "mqtts://127.0.0.1:8883"}) {
+    mqtt_link_options o = valid();
+    o.broker.uri = uri;
+    o.broker.tls = tls_config{(dir_ / "ca.crt").string(), "", ""};
+    auto link = mqtt_link::create(o);
+    EXPECT_TRUE(link.ok()) << uri << ": " << link.err().message;
+  }
+}
+
 TEST_F(MqttLinkCreate, AcceptsPasswordFileWithUsername) {
   mqtt_link_options o = valid();
   o.broker.username = "gateway";
@@ -81,7 +98,7 @@ TEST_F(MqttLinkCreate, RejectsBadOptionsNamingTheField) {
        }},
       {"unknown scheme", [](mqtt_link_options& o, const fs::path&) { o.broker.uri = "http://127.0.0.1:1883"; },
        [](const fs::path&) {
-         return std::string("broker.uri \"http://127.0.0.1:1883\": must start with tcp:// or ssl://");
+         return std::string("broker.uri \"http://127.0.0.1:1883\": must start with tcp://, ssl://, mqtt:// or mqtts://");
        }},
       {"no host", [](mqtt_link_options& o, const fs::path&) { o.broker.uri = "tcp://"; },
        [](const fs::path&) { return std::string("broker.uri \"tcp://\": names no host"); }},
@@ -90,7 +107,7 @@ TEST_F(MqttLinkCreate, RejectsBadOptionsNamingTheField) {
          o.broker.tls = tls_config{(d / "ca.crt").string(), "", ""};
        },
        [](const fs::path&) {
-         return std::string("broker.tls is set but broker.uri tcp://127.0.0.1:1883 is plain tcp://: use ssl://");
+         return std::string("broker.tls is set but broker.uri tcp://127.0.0.1:1883 is not encrypted: use ssl:// or mqtts://");
        }},
       {"missing ca file",
        [](mqtt_link_options& o, const fs::path& d) {

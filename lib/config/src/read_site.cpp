@@ -3,6 +3,7 @@
 #include <algorithm>
 
 #include "config_reading.h"
+#include "dewmargin/broker_uri.h"
 
 namespace dewmargin::config_detail {
 namespace {
@@ -31,21 +32,17 @@ bool non_empty_text(const map_reader& m, const char* key, presence p, std::strin
   return true;
 }
 
-bool starts_with(const std::string& s, const char* prefix) { return s.rfind(prefix, 0) == 0; }
 
-bool is_tls_scheme(const std::string& uri) { return starts_with(uri, "ssl://") || starts_with(uri, "mqtts://"); }
+bool is_tls_scheme(const std::string& uri) { return broker_transport_of(uri) == broker_transport::tls; }
 
 // scheme://host[:port], the forms Paho takes for MQTT over TCP and TLS.
 bool check_broker_uri(const located<std::string>& uri, diagnostics& diag) {
   const std::string& u = uri.value;
-  std::size_t rest = 0;
-  for (const char* scheme : {"tcp://", "ssl://", "mqtt://", "mqtts://"}) {
-    if (starts_with(u, scheme)) rest = std::string(scheme).size();
-  }
-  if (rest == 0) {
-    diag.error(uri.at, "broker uri '" + u + "' must start with tcp://, ssl://, mqtt:// or mqtts://");
+  if (!broker_transport_of(u)) {
+    diag.error(uri.at, "broker uri '" + u + "' must start with " + accepted_broker_schemes());
     return false;
   }
+  const std::size_t rest = u.find("://") + 3;
   const std::string authority = u.substr(rest);
   const std::size_t colon = authority.rfind(':');
   const bool bracketed_v6 = !authority.empty() && authority.front() == '[';

@@ -3,6 +3,8 @@
 #include <cmath>
 #include <utility>
 
+#include "dewmargin/broker_uri.h"
+
 namespace dewmargin::detail {
 
 ::mqtt::create_options make_create_options(const mqtt_link_options& options) {
@@ -30,7 +32,7 @@ namespace dewmargin::detail {
   if (!password.empty()) {
     c.set_password(password);
   }
-  if (options.broker.uri.compare(0, 6, "ssl://") == 0) {
+  if (broker_transport_of(options.broker.uri) == broker_transport::tls) {
     ::mqtt::ssl_options ssl;
     if (options.broker.tls) {
       const tls_config& t = *options.broker.tls;

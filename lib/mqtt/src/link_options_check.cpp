@@ -4,12 +4,14 @@
 #include <cstdio>
 #include <cstring>
 #include <memory>
+#include <optional>
 #include <utility>
+
+#include "dewmargin/broker_uri.h"
 
 namespace dewmargin::detail {
 namespace {
 
-bool starts_with(const std::string& s, const std::string& prefix) { return s.compare(0, prefix.size(), prefix) == 0; }
 
 std::string check_readable(const std::string& field, const std::string& path) {
   const std::unique_ptr<std::FILE, int (*)(std::FILE*)> f(std::fopen(path.c_str(), "rb"), &std::fclose);
@@ -36,12 +38,12 @@ std::string invalid_publish_topic(const std::string& topic) {
 
 std::string check_link_options(const mqtt_link_options& o) {
   const broker_config& b = o.broker;
-  const bool tcp = starts_with(b.uri, "tcp://");
-  const bool ssl = starts_with(b.uri, "ssl://");
-  if (!tcp && !ssl) {
-    return "broker.uri \"" + b.uri + "\": must start with tcp:// or ssl://";
+  const std::optional<broker_transport> transport = broker_transport_of(b.uri);
+  if (!transport) {
+    return "broker.uri \"" + b.uri + "\": must start with " + accepted_broker_schemes();
   }
-  if (b.uri.size() <= std::string("tcp://").size()) {
+  const bool tcp = transport == broker_transport::plain;
+  if (b.uri.size() <= b.uri.find("://") + 3) {
     return "broker.uri \"" + b.uri + "\": names no host";
   }
   if (b.client_id.empty()) {
@@ -51,7 +53,7 @@ std::string check_link_options(const mqtt_link_options& o) {
     return "broker.keepalive_s " + std::to_string(b.keepalive_s) + ": must lie in 1 ... 65535 s";
   }
   if (b.tls && tcp) {
-    return "broker.tls is set but broker.uri " + b.uri + " is plain tcp://: use ssl://";
+    return "broker.tls is set but broker.uri " + b.uri + " is not encrypted: use ssl:// or mqtts://";
   }
   if (!b.password_file.empty() && b.username.empty()) {
     return "broker.password_file is set but broker.username is empty (MQTT 3.1.1 sends no password without a user)";

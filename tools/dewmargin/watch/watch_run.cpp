@@ -17,6 +17,7 @@
 #include <thread>
 
 #include "../commands.h"
+#include "dewmargin/broker_uri.h"
 #include "dewmargin/config_loader.h"
 #include "dewmargin/live_book.h"
 #include "dewmargin/secret_file.h"
@@ -44,7 +45,6 @@ timestamp wall_now() {
   return std::chrono::time_point_cast<std::chrono::milliseconds>(std::chrono::system_clock::now());
 }
 
-bool starts_with(const std::string& s, const char* p) { return s.rfind(p, 0) == 0; }
 
 struct connection_settings {
   std::string uri;
@@ -85,12 +85,9 @@ result<connection_settings> settings_from(const watch_options& o) {
   if (s.uri.empty())
     return make_error(error_code::invalid_argument, "give --config FILE, or --broker URI and --prefix P");
   if (s.prefixes.empty()) s.prefixes = {"dewmargin"};
-  bool scheme_ok = false;
-  for (const char* scheme : {"tcp://", "ssl://", "mqtt://", "mqtts://"})
-    scheme_ok = scheme_ok || starts_with(s.uri, scheme);
-  if (!scheme_ok) {
+  if (!broker_transport_of(s.uri)) {
     return make_error(error_code::invalid_argument,
-                      "--broker '" + s.uri + "' must start with tcp://, ssl://, mqtt:// or mqtts://");
+                      "--broker '" + s.uri + "' must start with " + accepted_broker_schemes());
   }
   for (const auto& p : s.prefixes) {
     if (p.empty() || p.find_first_of("+#") != std::string::npos || p.front() == '/' || p.back() == '/') {
@@ -115,7 +112,7 @@ mqtt::connect_options connect_options_for(const connection_settings& s) {
   c.set_automatic_reconnect(1, 8);
   if (!s.username.empty()) c.set_user_name(s.username);
   if (!s.password.empty()) c.set_password(s.password);
-  if (starts_with(s.uri, "ssl://") || starts_with(s.uri, "mqtts://")) {
+  if (broker_transport_of(s.uri) == broker_transport::tls) {
     mqtt::ssl_options ssl;
     if (!s.ca_file.empty()) ssl.set_trust_store(s.ca_file);
     if (!s.cert_file.empty()) ssl.set_key_store(s.cert_file);
