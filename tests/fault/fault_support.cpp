@@ -291,8 +291,12 @@ delivery_count compare_delivery(const std::vector<std::string>& produced, const 
   for (const auto& [payload, n] : made) {
     const auto it = got.find(payload);
     const std::size_t have = it == got.end() ? 0 : it->second;
-    if (have < n) c.lost += n - have;
+    if (have < n) {
+      c.lost += n - have;
+      if (c.lost_examples.size() < 5) c.lost_examples.push_back(payload);
+    }
   }
+  for (const auto& example : c.lost_examples) std::fprintf(stderr, "lost: %s\n", example.c_str());
   for (const auto& [payload, n] : got) {
     const auto it = made.find(payload);
     const std::size_t want = it == made.end() ? 0 : it->second;

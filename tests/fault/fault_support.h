@@ -124,6 +124,7 @@ struct delivery_count {
   std::size_t received = 0;
   std::size_t lost = 0;
   std::size_t duplicates = 0;
+  std::vector<std::string> lost_examples;  // the first few lost payloads, for the failure message
 };
 delivery_count compare_delivery(const std::vector<std::string>& produced, const std::vector<std::string>& received);
 

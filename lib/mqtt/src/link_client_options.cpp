@@ -20,8 +20,7 @@ namespace dewmargin::detail {
   c.set_clean_session(false);
   c.set_keep_alive_interval(static_cast<int>(std::lround(options.broker.keepalive_s)));
   c.set_connect_timeout(static_cast<int>(options.connect_timeout.count()));
-  c.set_automatic_reconnect(static_cast<int>(options.reconnect_min.count()),
-                            static_cast<int>(options.reconnect_max.count()));
+  // No automatic reconnect: the link replaces the client after a loss (mqtt_link.cpp).
   c.set_max_inflight(static_cast<int>(options.max_in_flight) + k_library_headroom);
   if (!options.status_topic.empty()) {
     c.set_will(::mqtt::will_options(options.status_topic, options.offline_will_payload, k_qos, true));

@@ -11,6 +11,7 @@
 #include <unordered_map>
 #include <utility>
 
+#include "dewmargin/broker_uri.h"
 #include "dewmargin/secret_file.h"
 #include "dewmargin/tcp_nodelay.h"
 #include "link_client_options.h"
@@ -32,7 +33,6 @@ constexpr std::chrono::milliseconds k_destructor_shutdown_timeout{1000};
 // A failed connect is explained by a TCP probe of the broker's address; this bounds it.
 constexpr std::chrono::milliseconds k_tcp_probe_timeout{1000};
 
-bool starts_with(const std::string& s, const std::string& prefix) { return s.compare(0, prefix.size(), prefix) == 0; }
 
 void* to_context(std::uint64_t value) { return reinterpret_cast<void*>(static_cast<std::uintptr_t>(value)); }
 std::uint64_t from_context(void* context) {
@@ -96,16 +96,7 @@ struct mqtt_link::impl {
       : options_(std::move(options)),
         broker_port_(broker_uri_port(options_.broker.uri)),
         box_(options_.outbox_capacity),
-        inbound_(options_.inbound_capacity, options_.must_keep_prefixes),
-        delivery_listener_(
-            [this](const ::mqtt::token& tok) { run_handler("delivery", [&] { on_delivery_success(tok); }); },
-            [this](const ::mqtt::token& tok) { run_handler("delivery failure", [&] { on_delivery_failure(tok); }); }),
-        subscribe_listener_(
-            [this](const ::mqtt::token& tok) { run_handler("subscribe", [&] { on_subscribe_success(tok); }); },
-            [this](const ::mqtt::token& tok) { run_handler("subscribe failure", [&] { on_subscribe_failure(tok); }); }),
-        status_listener_(
-            [](const ::mqtt::token&) {},
-            [this](const ::mqtt::token& tok) { run_handler("status failure", [&] { on_status_failure(tok); }); }) {}
+        inbound_(options_.inbound_capacity, options_.must_keep_prefixes) {}
 
   impl(const impl&) = delete;
   impl& operator=(const impl&) = delete;
@@ -114,6 +105,18 @@ struct mqtt_link::impl {
   // ---- set-up -------------------------------------------------------------------------
 
   std::string build(const std::string& password) {
+    connect_options_ = detail::make_connect_options(options_, password);
+    return make_client();
+  }
+
+  // A client object for one connection, its handlers and listeners tagged with its
+  // generation (see replace_client()).
+  std::string make_client() {
+    std::uint64_t generation = 0;
+    {
+      std::lock_guard<std::mutex> lock(mutex_);
+      generation = client_generation_;
+    }
     try {
       // No persistence object: Paho's file persistence would write into the working directory.
       client_ = std::make_unique<::mqtt::async_client>(options_.broker.uri, options_.broker.client_id,
@@ -121,15 +124,78 @@ struct mqtt_link::impl {
     } catch (const ::mqtt::exception& e) {
       return "broker.uri " + options_.broker.uri + ": the client library refused it: " + e.what();
     }
-    connect_options_ = detail::make_connect_options(options_, password);
-
-    client_->set_message_callback(
-        [this](::mqtt::const_message_ptr m) { run_handler("message", [&] { on_message(m); }); });
-    client_->set_connected_handler(
-        [this](const std::string& cause) { run_handler("connected", [&] { on_connected(cause); }); });
-    client_->set_connection_lost_handler(
-        [this](const std::string& cause) { run_handler("connection lost", [&] { on_connection_lost(cause); }); });
+    delivery_listener_ = std::make_unique<forwarding_listener>(
+        [this, generation](const ::mqtt::token& tok) {
+          run_handler(generation, "delivery", [&] { on_delivery_success(tok); });
+        },
+        [this, generation](const ::mqtt::token& tok) {
+          run_handler(generation, "delivery failure", [&] { on_delivery_failure(tok); });
+        });
+    subscribe_listener_ = std::make_unique<forwarding_listener>(
+        [this, generation](const ::mqtt::token& tok) {
+          run_handler(generation, "subscribe", [&] { on_subscribe_success(tok); });
+        },
+        [this, generation](const ::mqtt::token& tok) {
+          run_handler(generation, "subscribe failure", [&] { on_subscribe_failure(tok); });
+        });
+    status_listener_ = std::make_unique<forwarding_listener>(
+        [](const ::mqtt::token&) {},
+        [this, generation](const ::mqtt::token& tok) {
+          run_handler(generation, "status failure", [&] { on_status_failure(tok); });
+        });
+    client_->set_message_callback([this, generation](::mqtt::const_message_ptr m) {
+      run_handler(generation, "message", [&] { on_message(m); });
+    });
+    client_->set_connected_handler([this, generation](const std::string& cause) {
+      run_handler(generation, "connected", [&] { on_connected(cause); });
+    });
+    client_->set_connection_lost_handler([this, generation](const std::string& cause) {
+      run_handler(generation, "connection lost", [&] { on_connection_lost(cause); });
+    });
     return {};
+  }
+
+  // After a lost connection the client object is replaced, not reconnected. Paho C 1.3.12
+  // keeps a QoS 1 publish whose socket write failed in its session after freeing its topic,
+  // and resends it on the next connect: a use after free (ASan, MqttLink.ResendsMessages-
+  // InFlightWhenTheBrokerDies) that could put a garbage topic on the wire. A fresh client
+  // starts with no such state; the outbox resends what was unacknowledged, and the broker
+  // keeps the persistent session (subscriptions, queued messages) for the same client id.
+  bool replace_client() {
+    {
+      std::unique_lock<std::mutex> lock(mutex_);
+      ++client_generation_;  // handlers of the old client are refused from here on
+      if (!handlers_idle_.wait_for(lock, k_handler_drain, [&] { return handlers_active_ == 0; })) {
+        lock.unlock();
+        report(link_report_level::error, "a client library handler did not return within 2 s after a lost connection");
+      }
+    }
+    dispose_client();
+    if (std::string why = make_client(); !why.empty()) {
+      report(link_report_level::error, "no new client after a lost connection: " + why);
+      return false;
+    }
+    std::unique_lock<std::mutex> lock(mutex_);
+    connection_lost_ = false;
+    // Not at once: another client with our id taking the session over would otherwise be
+    // answered by a takeover in a tight loop.
+    changed_.wait_for(lock, options_.reconnect_min, [&] { return stop_requested_locked(); });
+    return !stop_requested_locked();
+  }
+
+  // Callbacks off, then the client, then the listeners its tokens point to.
+  void dispose_client() {
+    if (client_) {
+      try {
+        client_->disable_callbacks();
+      } catch (const ::mqtt::exception&) {
+        // Refused while the library still counts itself connected; the gate keeps handlers out.
+      }
+      client_.reset();
+    }
+    delivery_listener_.reset();
+    subscribe_listener_.reset();
+    status_listener_.reset();
   }
 
   // ---- caller threads -----------------------------------------------------------------
@@ -287,14 +353,7 @@ struct mqtt_link::impl {
         report(link_report_level::error, "a client library handler did not return within 2 s at shutdown");
       }
     }
-    if (client_) {
-      try {
-        client_->disable_callbacks();
-      } catch (const ::mqtt::exception&) {
-        // Refused while the library still counts itself connected; the gate keeps handlers out.
-      }
-      client_.reset();
-    }
+    dispose_client();
     {
       std::lock_guard<std::mutex> lock(mutex_);
       session_ = session_phase::down;
@@ -308,10 +367,14 @@ struct mqtt_link::impl {
 
   // ---- sender thread ------------------------------------------------------------------
 
+  // One client object per connection: connect, send until the connection is lost, replace.
   void run_sender() {
-    if (!connect_first_time()) {
-      return;
+    while (connect_with_backoff() && send_until_lost() && replace_client()) {
     }
+  }
+
+  // True when the connection was lost, false when the link stops.
+  bool send_until_lost() {
     while (true) {
       std::vector<outbox_entry> batch;
       {
@@ -319,7 +382,7 @@ struct mqtt_link::impl {
         const auto can_send = [&] {
           return session_ == session_phase::sending && box_.pending() > 0 && box_.in_flight() < options_.max_in_flight;
         };
-        while (!stop_requested_locked() && !can_send()) {
+        while (!stop_requested_locked() && !connection_lost_ && !can_send()) {
           if (session_ == session_phase::paused) {
             changed_.wait_for(lock, k_send_retry_pause);
             if (session_ == session_phase::paused) session_ = session_phase::sending;
@@ -328,7 +391,10 @@ struct mqtt_link::impl {
           }
         }
         if (stop_requested_locked()) {
-          return;
+          return false;
+        }
+        if (connection_lost_) {
+          return true;
         }
         batch = box_.take_next_to_send(options_.max_in_flight);
       }
@@ -336,19 +402,15 @@ struct mqtt_link::impl {
     }
   }
 
-  // Retries until the first connect succeeds (true) or the link is stopped (false). The
-  // library's automatic reconnect also retries a failed first connect, later (measured:
-  // about 4 s); whichever gets there first wins, and the connected handler ends this loop.
-  bool connect_first_time() {
+  // Retries on the link's back-off until a connect succeeds (true) or the link is stopped
+  // (false). The library's automatic reconnect is off: this is the only retry.
+  bool connect_with_backoff() {
     auto backoff = options_.reconnect_min;
     while (true) {
       {
         std::lock_guard<std::mutex> lock(mutex_);
         if (stop_requested_locked()) {
           return false;
-        }
-        if (connections_ > 0) {
-          return true;  // the library's own retry connected meanwhile
         }
       }
       std::string failure;
@@ -373,9 +435,6 @@ struct mqtt_link::impl {
       }
       {
         std::lock_guard<std::mutex> lock(mutex_);
-        if (connections_ > 0) {
-          return true;  // this attempt lost the race against the library's own retry
-        }
         last_connect_error_ = failure;
       }
       report(link_report_level::warning, "connect to " + options_.broker.uri + " as " + options_.broker.client_id +
@@ -383,7 +442,7 @@ struct mqtt_link::impl {
                                              std::to_string(backoff.count()) + " s");
       {
         std::unique_lock<std::mutex> lock(mutex_);
-        changed_.wait_for(lock, backoff, [&] { return stop_requested_locked() || connections_ > 0; });
+        changed_.wait_for(lock, backoff, [&] { return stop_requested_locked(); });
       }
       backoff = std::min(backoff * 2, options_.reconnect_max);
     }
@@ -401,7 +460,7 @@ struct mqtt_link::impl {
     if (!detail::tcp_port_accepts(*where, k_tcp_probe_timeout)) {
       return " (nothing accepts TCP connections at " + where->host + ":" + where->port + ")";
     }
-    if (!starts_with(options_.broker.uri, "ssl://")) {
+    if (broker_transport_of(options_.broker.uri) != broker_transport::tls) {
       return " (the port accepts TCP connections now)";
     }
     return " (the port accepts TCP, so the TLS handshake failed: the broker's certificate must chain to " +
@@ -422,7 +481,7 @@ struct mqtt_link::impl {
       const outbox_entry& e = batch[i];
       try {
         (void)client_->publish(::mqtt::make_message(e.message.topic, e.message.payload, k_qos, e.message.retained),
-                               to_context(e.id), delivery_listener_);
+                               to_context(e.id), *delivery_listener_);
         std::lock_guard<std::mutex> lock(mutex_);
         ++published_;
       } catch (const ::mqtt::exception& ex) {
@@ -462,9 +521,9 @@ struct mqtt_link::impl {
   // Handlers run only while the gate is open, and shutdown waits for those inside.
   class handler_scope {
    public:
-    explicit handler_scope(impl& owner) : owner_(owner) {
+    handler_scope(impl& owner, std::uint64_t generation) : owner_(owner) {
       std::lock_guard<std::mutex> lock(owner_.mutex_);
-      entered_ = owner_.phase_ != link_phase::closed;
+      entered_ = owner_.phase_ != link_phase::closed && generation == owner_.client_generation_;
       if (entered_) ++owner_.handlers_active_;
     }
     ~handler_scope() {
@@ -481,11 +540,12 @@ struct mqtt_link::impl {
     bool entered_ = false;
   };
 
-  // Every handler the library calls goes through here: the gate, and no exception may
-  // propagate into the library's thread.
+  // Every handler the library calls goes through here: the gate (open only for the
+  // current client, and not once closed), and no exception may propagate into the
+  // library's thread.
   template <typename Body>
-  void run_handler(const char* what, Body&& body) noexcept {
-    const handler_scope scope(*this);
+  void run_handler(std::uint64_t generation, const char* what, Body&& body) noexcept {
+    const handler_scope scope(*this, generation);
     if (!scope) {
       return;
     }
@@ -542,7 +602,7 @@ struct mqtt_link::impl {
         }
       }
     }
-    changed_.notify_all();  // ends the sender's first-connect loop
+    changed_.notify_all();
     report(link_report_level::info,
            "connected to " + options_.broker.uri + " as " + options_.broker.client_id +
                (connection_number > 1 ? " (reconnect " + std::to_string(connection_number - 1) + ", " +
@@ -555,7 +615,7 @@ struct mqtt_link::impl {
     try {
       const auto filters = ::mqtt::string_collection::create(options_.subscriptions);
       const ::mqtt::iasync_client::qos_collection qos(options_.subscriptions.size(), k_qos);
-      (void)client_->subscribe(filters, qos, to_context(epoch), subscribe_listener_);
+      (void)client_->subscribe(filters, qos, to_context(epoch), *subscribe_listener_);
     } catch (const ::mqtt::exception& e) {
       report(link_report_level::error, "subscribe request failed: " + describe(e));
     }
@@ -598,7 +658,7 @@ struct mqtt_link::impl {
     if (announce) {
       try {
         (void)client_->publish(::mqtt::make_message(options_.status_topic, options_.online_payload, k_qos, true),
-                               nullptr, status_listener_);
+                               nullptr, *status_listener_);
       } catch (const ::mqtt::exception& e) {
         report(link_report_level::error, "publish of the online status failed: " + describe(e));
       }
@@ -622,6 +682,7 @@ struct mqtt_link::impl {
     {
       std::lock_guard<std::mutex> lock(mutex_);
       session_ = session_phase::down;
+      connection_lost_ = true;
       ++connection_losses_;
       returned = box_.on_connection_lost();
     }
@@ -718,6 +779,8 @@ struct mqtt_link::impl {
   } reported_;
   std::uint64_t outbox_drops_seen_ = 0;
   int handlers_active_ = 0;
+  std::uint64_t client_generation_ = 0;  // which client's handlers may run (replace_client())
+  bool connection_lost_ = false;         // the current client lost its connection
   std::uint64_t epoch_ = 0;
   std::uint64_t connections_ = 0;
   std::uint64_t connection_losses_ = 0;
@@ -727,11 +790,12 @@ struct mqtt_link::impl {
   std::string last_connect_error_;
 
   inbound_queue inbound_;
-  forwarding_listener delivery_listener_;
-  forwarding_listener subscribe_listener_;
-  forwarding_listener status_listener_;
   std::thread sender_;
-  // Last member: destroyed first, while everything its handlers touch still exists.
+  // The current client and the listeners its tokens point to (made and disposed of
+  // together). Last members: destroyed first, while everything their handlers touch exists.
+  std::unique_ptr<forwarding_listener> delivery_listener_;
+  std::unique_ptr<forwarding_listener> subscribe_listener_;
+  std::unique_ptr<forwarding_listener> status_listener_;
   std::unique_ptr<::mqtt::async_client> client_;
 };
 

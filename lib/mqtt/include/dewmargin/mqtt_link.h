@@ -37,12 +37,15 @@
 //     created --start()--> running --shutdown()--> draining --outbox empty or timeout--> stopping
 //       --handlers drained, client destroyed--> closed
 //     draining: the final status is queued and "online" is no longer published; sending goes on.
-//     stopping: the sender thread ends (also the first-connect loop). closed: no handler runs
+//     stopping: the sender thread ends (also its connect loop). closed: no handler runs
 //     (the gate), publish() is refused. shutdown() before start() passes draining to closed.
 //   Session on the current connection (session), in any phase before closed:
 //     down --connected--> subscribing --subscribe acknowledged, online published--> sending
 //     sending --the library refused a send--> paused --a delivery, or 200 ms--> sending
 //     subscribing, sending, paused --connection lost--> down
+//   One client object per connection: after a loss the sender thread shuts the gate on the
+//   old client's handlers (a generation number), destroys it, makes a new one and connects
+//   it on the link's own back-off (reconnect_min, doubling to reconnect_max).
 //   connected() is session != down; ready() is sending or paused. The sender takes from the
 //   outbox only in sending. Warnings given once per episode (a refused send, inbound or
 //   outbox overflow) are remembered apart: they are not states.
@@ -54,15 +57,17 @@
 //   has a lock-order problem in this version.
 // - No persistence object: the client writes nothing, least of all into the working
 //   directory (tested). The outbox is the only buffer; it lives in memory.
-// - The first connect fails (throws from its token) while the broker is down. Automatic
-//   reconnect does retry it, but only about 4 s later (1-2 s bounds; never without automatic
-//   reconnect): the sender thread retries it on its own back-off until either succeeds.
-//   Overlapping attempts were measured to end in one connection.
+// - A connect fails (throws from its token) while the broker is down; automatic reconnect
+//   retries a failed first connect only about 4 s later. It is off: the sender thread
+//   retries every connect on its own back-off.
+// - A QoS 1 publish whose socket write fails as the connection dies stays in the C
+//   library's session after its topic was freed, and is resent on reconnect (use after
+//   free, found by ASan). Hence a fresh client per connection instead of a reconnect.
 // - The library's default buffer of 100 messages also counts messages in flight (error
 //   -12): max buffered messages and max in flight are set to max_in_flight + 16.
-// - With clean session off the library itself resends unacknowledged QoS 1 messages after
-//   a reconnect and completes their original tokens; the outbox resends them too when its
-//   sender gets there first, so a subscriber may see a duplicate, never a gap.
+// - Clean session is off, so the broker keeps the subscriptions and queues QoS 1 messages
+//   for the client id while the link is away. What the link sent and was not acknowledged
+//   is resent from the outbox, so a subscriber may see a duplicate, never a gap.
 // - ssl_options::set_error_handler is unusable: connect() takes its options by value and
 //   the C library keeps a pointer to the handler inside that copy (use after scope, found
 //   by ASan). A failed TLS connect is explained by probing the TCP port instead.
