@@ -85,6 +85,14 @@ class forwarding_listener final : public ::mqtt::iaction_listener {
   handler on_failure_;
 };
 
+// One connection's client object and the listeners its tokens point to.
+struct library_client {
+  std::unique_ptr<::mqtt::async_client> client;
+  std::unique_ptr<forwarding_listener> delivery;
+  std::unique_ptr<forwarding_listener> subscribe;
+  std::unique_ptr<forwarding_listener> status;
+};
+
 // The link's state machine, documented in mqtt_link.h ("States").
 enum class link_phase { created, running, draining, stopping, closed };
 enum class session_phase { down, subscribing, sending, paused };
@@ -161,41 +169,89 @@ struct mqtt_link::impl {
   // InFlightWhenTheBrokerDies) that could put a garbage topic on the wire. A fresh client
   // starts with no such state; the outbox resends what was unacknowledged, and the broker
   // keeps the persistent session (subscriptions, queued messages) for the same client id.
-  bool replace_client() {
+  //
+  // The old client is retired, not destroyed at once: the library calls the connection-lost
+  // handler on a thread of its own and still reads the client object after our handler has
+  // returned (so do token completions refused at the gate). It is destroyed at the next
+  // replacement (a connection later) or at shutdown. Waits `pause` before returning (not at
+  // once: two clients with our id taking the session from each other would loop tightly).
+  // False when the link stops meanwhile.
+  bool replace_client(std::chrono::seconds pause) {
+    bool drained = true;
     {
       std::unique_lock<std::mutex> lock(mutex_);
       ++client_generation_;  // handlers of the old client are refused from here on
-      if (!handlers_idle_.wait_for(lock, k_handler_drain, [&] { return handlers_active_ == 0; })) {
-        lock.unlock();
-        report(link_report_level::error, "a client library handler did not return within 2 s after a lost connection");
-      }
+      drained = handlers_idle_.wait_for(lock, k_handler_drain, [&] { return handlers_active_ == 0; });
     }
-    dispose_client();
-    if (std::string why = make_client(); !why.empty()) {
-      report(link_report_level::error, "no new client after a lost connection: " + why);
-      return false;
+    if (!drained) {
+      report(link_report_level::error,
+             "a client library handler did not return within 2 s after a lost connection; its client is left as is");
     }
-    std::unique_lock<std::mutex> lock(mutex_);
-    connection_lost_ = false;
-    // Not at once: another client with our id taking the session over would otherwise be
-    // answered by a takeover in a tight loop.
-    changed_.wait_for(lock, options_.reconnect_min, [&] { return stop_requested_locked(); });
-    return !stop_requested_locked();
+    retire_client(drained);
+    {
+      std::unique_lock<std::mutex> lock(mutex_);
+      connection_lost_ = false;
+      changed_.wait_for(lock, pause, [&] { return stop_requested_locked(); });
+      if (stop_requested_locked()) return false;
+    }
+    // The same URI made a client at create(); should the library refuse now, keep trying.
+    auto backoff = options_.reconnect_min;
+    while (true) {
+      const std::string why = make_client();
+      if (why.empty()) return true;
+      report(link_report_level::error, "no new client after a lost connection: " + why + "; next attempt in " +
+                                           std::to_string(backoff.count()) + " s");
+      std::unique_lock<std::mutex> lock(mutex_);
+      changed_.wait_for(lock, backoff, [&] { return stop_requested_locked(); });
+      if (stop_requested_locked()) return false;
+      backoff = std::min(backoff * 2, options_.reconnect_max);
+    }
   }
 
-  // Callbacks off, then the client, then the listeners its tokens point to.
-  void dispose_client() {
-    if (client_) {
+  // The current client and its listeners become the retired set; the set retired before
+  // is destroyed. With a handler still inside (drained false) the client is never
+  // destroyed: it is left allocated, which a report has already said.
+  void retire_client(bool drained) {
+    library_client previous = std::move(retired_);
+    retired_ = library_client{std::move(client_), std::move(delivery_listener_), std::move(subscribe_listener_),
+                              std::move(status_listener_)};
+    if (retired_.client) {
       try {
-        client_->disable_callbacks();
+        retired_.client->disable_callbacks();
       } catch (const ::mqtt::exception&) {
         // Refused while the library still counts itself connected; the gate keeps handlers out.
       }
-      client_.reset();
     }
-    delivery_listener_.reset();
-    subscribe_listener_.reset();
-    status_listener_.reset();
+    if (!drained) {
+      (void)retired_.client.release();
+      (void)retired_.delivery.release();
+      (void)retired_.subscribe.release();
+      (void)retired_.status.release();
+    }
+    destroy(previous);
+  }
+
+  // Callbacks off, then the client, then the listeners its tokens point to.
+  static void destroy(library_client& c) {
+    if (c.client) {
+      try {
+        c.client->disable_callbacks();
+      } catch (const ::mqtt::exception&) {
+        // Refused while the library still counts itself connected; the gate keeps handlers out.
+      }
+      c.client.reset();
+    }
+    c.delivery.reset();
+    c.subscribe.reset();
+    c.status.reset();
+  }
+
+  // Shutdown: the current client and the retired one.
+  void dispose_client() {
+    library_client current{std::move(client_), std::move(delivery_listener_), std::move(subscribe_listener_),
+                           std::move(status_listener_)};
+    destroy(current);
+    destroy(retired_);
   }
 
   // ---- caller threads -----------------------------------------------------------------
@@ -368,8 +424,18 @@ struct mqtt_link::impl {
   // ---- sender thread ------------------------------------------------------------------
 
   // One client object per connection: connect, send until the connection is lost, replace.
+  // The pause before the next connect is reconnect_min, doubled for each connection in a
+  // row that lasted less than reconnect_max (a broker, or a second client with our id,
+  // dropping us at once is not answered every second).
   void run_sender() {
-    while (connect_with_backoff() && send_until_lost() && replace_client()) {
+    auto next_pause = options_.reconnect_min;
+    while (connect_with_backoff()) {
+      const auto connected_at = std::chrono::steady_clock::now();
+      if (!send_until_lost()) return;
+      const bool short_lived = std::chrono::steady_clock::now() - connected_at < options_.reconnect_max;
+      const auto pause = short_lived ? next_pause : options_.reconnect_min;
+      next_pause = std::min(pause * 2, options_.reconnect_max);
+      if (!replace_client(pause)) return;
     }
   }
 
@@ -797,6 +863,7 @@ struct mqtt_link::impl {
   std::unique_ptr<forwarding_listener> subscribe_listener_;
   std::unique_ptr<forwarding_listener> status_listener_;
   std::unique_ptr<::mqtt::async_client> client_;
+  library_client retired_;  // the client of the previous connection (see replace_client())
 };
 
 // ---- mqtt_link ------------------------------------------------------------------------

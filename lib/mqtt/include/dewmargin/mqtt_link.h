@@ -16,19 +16,21 @@
 //   persistence has forgotten it.
 // - Inbound: a bounded queue (dewmargin/inbound_queue.h); overflow is counted, command
 //   topics (must_keep_prefixes) are never dropped.
-// - Connect: start() returns at once. The first connect is retried with bounded back-off;
-//   afterwards the library reconnects automatically with the same bounds.
+// - Connect: start() returns at once. Every connect is retried with bounded back-off
+//   (reconnect_min doubling to reconnect_max) by the link's sender thread, each connection
+//   on a fresh client object (see the Paho facts below).
 //
 // Threads:
 // - Caller threads (the service's worker): publish(), next_message(), next_batch(), stats(), connected(),
 //   ready(), last_connect_error(), shutdown(). All of them only take the link's lock briefly;
 //   next_message() waits on the inbound queue alone.
-// - The link's sender thread: makes the first connect, then moves messages from the
-//   outbox to the client library (up to max_in_flight at a time). It is the only thread
-//   that waits on a library token (the connect token, bounded).
-// - The library's one callback thread runs every handler: message arrived, connected,
-//   connection lost, subscribe/publish completion. Handlers never wait on a token; they
-//   take the link's lock briefly, and at most start an asynchronous subscribe or publish.
+// - The link's sender thread: makes every connect, moves messages from the outbox to the
+//   client library (up to max_in_flight at a time), and replaces the client after a loss.
+//   It is the only thread that waits on a library token (the connect token, bounded).
+// - The library's threads run the handlers: message arrived, connected, subscribe/publish
+//   completion on its callback thread, connection lost on a thread of its own. Handlers
+//   never wait on a token; they take the link's lock briefly, and at most start an
+//   asynchronous subscribe or publish.
 // - `report` is called from any of these threads, never with the link's lock held: it must
 //   be thread-safe. It never receives the password.
 //
@@ -44,8 +46,8 @@
 //     sending --the library refused a send--> paused --a delivery, or 200 ms--> sending
 //     subscribing, sending, paused --connection lost--> down
 //   One client object per connection: after a loss the sender thread shuts the gate on the
-//   old client's handlers (a generation number), destroys it, makes a new one and connects
-//   it on the link's own back-off (reconnect_min, doubling to reconnect_max).
+//   old client's handlers (a generation number), retires it (destroyed one connection
+//   later, or at shutdown), makes a new one and connects it on the link's own back-off.
 //   connected() is session != down; ready() is sending or paused. The sender takes from the
 //   outbox only in sending. Warnings given once per episode (a refused send, inbound or
 //   outbox overflow) are remembered apart: they are not states.
@@ -95,7 +97,7 @@ namespace dewmargin {
 enum class link_report_level { info, warning, error };
 
 struct mqtt_link_options {
-  broker_config broker;                         // uri tcp:// or ssl://, client_id required
+  broker_config broker;                         // uri tcp://, mqtt://, ssl:// or mqtts://; client_id required
   std::string status_topic;                     // <prefix>/status; empty: no will, no status
   std::string online_payload;                   // retained on status_topic after each subscribe
   std::string offline_will_payload;             // the Last Will, retained, QoS 1
