@@ -424,18 +424,11 @@ struct mqtt_link::impl {
   // ---- sender thread ------------------------------------------------------------------
 
   // One client object per connection: connect, send until the connection is lost, replace.
-  // The pause before the next connect is reconnect_min, doubled for each connection in a
-  // row that lasted less than reconnect_max (a broker, or a second client with our id,
-  // dropping us at once is not answered every second).
+  // The pause before the next connect is reconnect_min after every loss, as Paho's own
+  // reconnect did: growing it for short connections was tried and made recovery from a
+  // broker that restarts every few seconds take up to reconnect_max each time.
   void run_sender() {
-    auto next_pause = options_.reconnect_min;
-    while (connect_with_backoff()) {
-      const auto connected_at = std::chrono::steady_clock::now();
-      if (!send_until_lost()) return;
-      const bool short_lived = std::chrono::steady_clock::now() - connected_at < options_.reconnect_max;
-      const auto pause = short_lived ? next_pause : options_.reconnect_min;
-      next_pause = std::min(pause * 2, options_.reconnect_max);
-      if (!replace_client(pause)) return;
+    while (connect_with_backoff() && send_until_lost() && replace_client(options_.reconnect_min)) {
     }
   }
 
