@@ -358,6 +358,7 @@ struct latency_options {
   std::string prefix = "dm";
   double gap_s = 0.02;
   double show_slow_ms = 0;  // > 0: print every round trip slower than this (with its time)
+  int warm_up = 10;         // round trips not counted (0: measure from the first, e.g. into a burst)
 };
 
 double percentile(std::vector<double> v, double p) {
@@ -404,8 +405,7 @@ int run_latency(const latency_options& o) {
   std::vector<double> rtt_ms;
   int wet = 1;
   // The first round trips warm up the connections and caches: not counted.
-  constexpr int k_warm_up = 10;
-  for (int i = -k_warm_up; i < o.samples; ++i) {
+  for (int i = -o.warm_up; i < o.samples; ++i) {
     const int before = answers.load();
     const auto t0 = clock_type::now();
     if (echo) {
@@ -501,6 +501,7 @@ int main(int argc, char** argv) {
   lat->add_option("--target", l.target)->check(CLI::IsMember({"echo", "service"}));
   lat->add_option("--prefix", l.prefix);
   lat->add_option("--show-slow-ms", l.show_slow_ms, "print each round trip slower than this, with its wall time");
+  lat->add_option("--warm-up", l.warm_up, "round trips before the measured ones (default 10)")->check(CLI::Range(0, 1000));
 
   long sub_count = 100000;
   int sub_qos = 1;

@@ -97,7 +97,7 @@ std::vector<outbox_entry> outbox::take_next_to_send(std::size_t max_in_flight) {
   const std::size_t count = std::min(max_in_flight - busy, pending_.size());
   taken.reserve(count);
   for (std::size_t i = 0; i < count; ++i) {
-    const outbox_id id = *pending_.begin();
+    const outbox_id id = next_pending();
     slot& s = entries_.at(id);
     unmark_pending(id, s);
     s.in_flight = true;
@@ -168,10 +168,26 @@ std::uint64_t outbox::dropped_total() const {
 std::vector<outbox_entry> outbox::pending_entries() const {
   std::vector<outbox_entry> out;
   out.reserve(pending_.size());
+  for (const message_class first : {message_class::command, message_class::alarm_event}) {
+    for (const outbox_id id : pending_by_class_[class_index(first)]) {
+      out.push_back(outbox_entry{id, entries_.at(id).message});
+    }
+  }
   for (const outbox_id id : pending_) {
-    out.push_back(outbox_entry{id, entries_.at(id).message});
+    const message_class cls = entries_.at(id).message.cls;
+    if (cls != message_class::command && cls != message_class::alarm_event) {
+      out.push_back(outbox_entry{id, entries_.at(id).message});
+    }
   }
   return out;
+}
+
+outbox_id outbox::next_pending() const {
+  for (const message_class first : {message_class::command, message_class::alarm_event}) {
+    const auto& ids = pending_by_class_[class_index(first)];
+    if (!ids.empty()) return *ids.begin();
+  }
+  return *pending_.begin();
 }
 
 void outbox::erase(slot_map::iterator it) {
