@@ -122,13 +122,13 @@ TEST_P(OutboxScript, EndsInExpectedState) {
 
 // clang-format off
 INSTANTIATE_TEST_SUITE_P(Cases, OutboxScript, ::testing::Values(
-    outbox_case{"KeepsPushOrderAmongEventsAndStates", 10,
+    outbox_case{"EventsGoBeforeStatesEachInPushOrder", 10,
                 {push("e:ev=1"), push("s:z/a=1"), push("e:ev=2"), push("s:z/b=1")},
-                {"ev=1", "z/a=1", "ev=2", "z/b=1"}, 0, {}, 0},
-    outbox_case{"SendsCommandsThenAlarmsThenTheRest", 10,
-                {push("e:ev=1"), push("s:z/a=1"), push("a:al=1"), push("c:v/a=open"), push("a:al=2"),
+                {"ev=1", "ev=2", "z/a=1", "z/b=1"}, 0, {}, 0},
+    outbox_case{"SendsCommandsThenEventsThenStates", 10,
+                {push("e:ev=1"), push("s:z/a=1"), push("a:al=1"), push("c:v/a=open"), push("e:ev=2"),
                  push("c:v/b=open")},
-                {"v/a=open", "v/b=open", "al=1", "al=2", "ev=1", "z/a=1"}, 0, {}, 0},
+                {"v/a=open", "v/b=open", "ev=1", "al=1", "ev=2", "z/a=1"}, 0, {}, 0},
     outbox_case{"ACommandOvertakesAWaveOfStates", 10,
                 {push("s:z/a=1"), push("s:z/b=1"), push("s:z/c=1"), take(1), push("c:v/a=closed"), take(2)},
                 {"z/b=1", "z/c=1"}, 2, {}, 0},
@@ -140,7 +140,7 @@ INSTANTIATE_TEST_SUITE_P(Cases, OutboxScript, ::testing::Values(
                 {"v/b=open", "v/a=closed"}, 0, {}, 1},
     outbox_case{"EventsAreNeverKeyed", 10,
                 {push("e:ev=1"), push("e:ev=2"), push("a:al=1"), push("a:al=2")},
-                {"al=1", "al=2", "ev=1", "ev=2"}, 0, {}, 0},
+                {"ev=1", "ev=2", "al=1", "al=2"}, 0, {}, 0},
     outbox_case{"StateInFlightIsNotReplacedButNewerQueued", 10,
                 {push("s:z/a=1"), take(5), push("s:z/a=2")},
                 {"z/a=2"}, 1, {}, 0},
@@ -179,10 +179,10 @@ INSTANTIATE_TEST_SUITE_P(Cases, OutboxScript, ::testing::Values(
                 {"ev=2"}, 0, {}, 0},
     outbox_case{"FullDropsOldestEventFirst", 2,
                 {push("e:ev=1"), push("s:z/a=1"), push("e:ev=2"), push("e:ev=3")},
-                {"z/a=1", "ev=2", "ev=3"}, 0, {0, 1, 0, 0}, 0},
+                {"ev=2", "ev=3", "z/a=1"}, 0, {0, 1, 0, 0}, 0},
     outbox_case{"FullOfEventsDropsOldestEventForAlarm", 2,
                 {push("e:ev=1"), push("e:ev=2"), push("a:al=1")},
-                {"al=1", "ev=2"}, 0, {0, 1, 0, 0}, 0},
+                {"ev=2", "al=1"}, 0, {0, 1, 0, 0}, 0},
     outbox_case{"KeyedEntriesDoNotCountAgainstCapacity", 1,
                 {push("a:al=1"), push("s:z/a=1"), push("c:v/a=open"), push("s:z/b=1")},
                 {"v/a=open", "al=1", "z/a=1", "z/b=1"}, 0, {}, 0},
@@ -198,6 +198,9 @@ INSTANTIATE_TEST_SUITE_P(Cases, OutboxScript, ::testing::Values(
     outbox_case{"FullOfEventsStillQueuesStateAndCommand", 2,
                 {push("e:ev=1"), push("e:ev=2"), push("s:z/a=1"), push("c:v/a=open")},
                 {"v/a=open", "ev=1", "ev=2", "z/a=1"}, 0, {}, 0},
+    outbox_case{"AnAlarmOvertakesAWaveOfStatesButNotEarlierEvents", 10,
+                {push("s:z/a=1"), push("e:ev=1"), push("s:z/b=1"), push("s:z/c=1"), push("a:al=1")},
+                {"ev=1", "al=1", "z/a=1", "z/b=1", "z/c=1"}, 0, {}, 0},
     outbox_case{"ReplacingWaitingStateNeedsNoRoom", 2,
                 {push("e:ev=1"), push("s:z/a=1"), push("s:z/a=2")},
                 {"ev=1", "z/a=2"}, 0, {}, 1},
@@ -345,7 +348,7 @@ TEST(Outbox, BoundsEventsAmidKeyedTrafficInDropOrder) {
   ASSERT_EQ(alarms_left.size(), 100U);
   EXPECT_EQ(alarms_left.front(), "100");
   EXPECT_EQ(alarms_left.back(), "199");
-  EXPECT_EQ(box.pending_entries().front().message.payload, "100") << "alarm events are sent before states";
+  EXPECT_EQ(box.pending_entries().front().message.payload, "100") << "events are sent before states";
   // An event meeting only alarm events is the one dropped.
   EXPECT_FALSE(box.push(parse_message("e:ev=late")).has_value());
   EXPECT_EQ(box.dropped(message_class::event), 501U);

@@ -165,28 +165,46 @@ std::uint64_t outbox::dropped_total() const {
   return total;
 }
 
+namespace {
+// Sending rank: commands, then events of both kinds (one topic: their order is kept), then states.
+int send_rank(message_class cls) {
+  switch (cls) {
+    case message_class::command:
+      return 0;
+    case message_class::alarm_event:
+    case message_class::event:
+      return 1;
+    case message_class::state:
+      return 2;
+  }
+  return 2;
+}
+}  // namespace
+
 std::vector<outbox_entry> outbox::pending_entries() const {
   std::vector<outbox_entry> out;
   out.reserve(pending_.size());
-  for (const message_class first : {message_class::command, message_class::alarm_event}) {
-    for (const outbox_id id : pending_by_class_[class_index(first)]) {
-      out.push_back(outbox_entry{id, entries_.at(id).message});
-    }
-  }
-  for (const outbox_id id : pending_) {
-    const message_class cls = entries_.at(id).message.cls;
-    if (cls != message_class::command && cls != message_class::alarm_event) {
-      out.push_back(outbox_entry{id, entries_.at(id).message});
+  for (int rank = 0; rank <= 2; ++rank) {
+    for (const outbox_id id : pending_) {
+      const outbound_message& m = entries_.at(id).message;
+      if (send_rank(m.cls) == rank) out.push_back(outbox_entry{id, m});
     }
   }
   return out;
 }
 
 outbox_id outbox::next_pending() const {
-  for (const message_class first : {message_class::command, message_class::alarm_event}) {
-    const auto& ids = pending_by_class_[class_index(first)];
-    if (!ids.empty()) return *ids.begin();
-  }
+  const auto first_of = [&](message_class cls) -> std::optional<outbox_id> {
+    const auto& ids = pending_by_class_[class_index(cls)];
+    if (ids.empty()) return std::nullopt;
+    return *ids.begin();
+  };
+  if (const auto command = first_of(message_class::command)) return *command;
+  const auto alarm = first_of(message_class::alarm_event);
+  const auto event = first_of(message_class::event);
+  if (alarm && event) return std::min(*alarm, *event);
+  if (alarm) return *alarm;
+  if (event) return *event;
   return *pending_.begin();
 }
 

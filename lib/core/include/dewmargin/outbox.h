@@ -6,10 +6,12 @@
 // The outbox is pure bookkeeping: no clock, no threads, no I/O; the MQTT link drives it.
 //
 // Rules:
-// - Order: plant commands first, then alarm events, then events and states; within each of
-//   these oldest first (ids increase with every push). Why: after a reconnect or a reload
-//   thousands of retained states wait at once, and a valve command or an alarm made
-//   meanwhile must not wait behind them (safety first; measured in bench/run's latency).
+// - Order: plant commands first, then events (alarm events and others together, since they
+//   share one topic and a subscriber must see them in the order they were made), then
+//   states; within each oldest first (ids increase with every push). Why: after a reconnect
+//   or a reload thousands of retained states wait at once, and a valve command or an alarm
+//   made meanwhile must not wait behind them (safety first). Only the order across topics
+//   changes: each topic's messages still go out in the order they were pushed.
 // - Keyed entries: `state` and `command` messages are keyed by topic; only the latest
 //   matters. A newer one replaces a waiting (pending) older one and takes its place at the
 //   end of its queue, so within a class the order subscribers see follows the core's.
