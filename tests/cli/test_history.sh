@@ -137,7 +137,7 @@ expect_exit 0 "$bin" history --db "$db" --kind ack --format csv
 
 # Exit 1: missing file, foreign SQLite file, not SQLite at all, newer schema.
 expect_exit 1 "$bin" history --db "$work/missing.db"
-grep -q "missing.db: no such file" "$work/err" || fail "missing: $(cat "$work/err")"
+grep -Eq "^dewmargin history: .*missing.db: no such file" "$work/err" || fail "missing: $(cat "$work/err")"
 sqlite3 "$work/foreign.db" "CREATE TABLE t (x); PRAGMA application_id = 12345;"
 expect_exit 1 "$bin" history --db "$work/foreign.db"
 grep -q "foreign.db: not a dewmargin history database (application_id 0x00003039" "$work/err" ||

@@ -75,7 +75,7 @@ grep -q "not in the config" "$work/cfg.html" || fail "zones missing from the con
 # Exit 1: missing or foreign database, nothing in the period, a file that cannot be written.
 run report --db "$work/missing.db" --out "$work/x.html"
 expect_rc 1 "missing database"
-expect_line "$work/err" "missing.db: no such file" "missing database message"
+expect_line "$work/err" "^dewmargin report: .*missing.db: no such file" "missing database message"
 run report --db "$db" --zone nowhere --out "$work/x.html"
 expect_rc 1 "a zone without data"
 expect_line "$work/err" "no zone has samples or events in the period" "empty report message"

@@ -94,7 +94,7 @@ int run_history(const history_options& o, std::ostream& out, std::ostream& err) 
 
   const auto reader = history_reader::open(o.db);
   if (!reader.ok()) {
-    err << reader.err().message << '\n';
+    err << k_prog << reader.err().message << '\n';
     return k_exit_runtime;
   }
 
@@ -149,7 +149,7 @@ int run_history(const history_options& o, std::ostream& out, std::ostream& err) 
   out.flush();
 
   if (!visited.ok()) {
-    err << visited.err().message << '\n';
+    err << k_prog << visited.err().message << '\n';
     return k_exit_runtime;
   }
   if (invalid_count > 0) {

@@ -81,12 +81,12 @@ int run_report(const report_options& o, std::ostream& out, std::ostream& err) {
 
   const auto reader = history_reader::open(o.db);
   if (!reader.ok()) {
-    err << reader.err().message << '\n';
+    err << k_prog << reader.err().message << '\n';
     return k_exit_runtime;
   }
   const auto data = report::build_report(reader.value(), ro);
   if (!data.ok()) {
-    err << data.err().message << '\n';
+    err << k_prog << data.err().message << '\n';
     return k_exit_runtime;
   }
   if (data.value().zones.empty()) {
