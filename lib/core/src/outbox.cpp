@@ -97,7 +97,7 @@ std::vector<outbox_entry> outbox::take_next_to_send(std::size_t max_in_flight) {
   const std::size_t count = std::min(max_in_flight - busy, pending_.size());
   taken.reserve(count);
   for (std::size_t i = 0; i < count; ++i) {
-    const outbox_id id = next_pending();
+    const outbox_id id = *pending_.begin();
     slot& s = entries_.at(id);
     unmark_pending(id, s);
     s.in_flight = true;
@@ -165,47 +165,13 @@ std::uint64_t outbox::dropped_total() const {
   return total;
 }
 
-namespace {
-// Sending rank: commands, then events of both kinds (one topic: their order is kept), then states.
-int send_rank(message_class cls) {
-  switch (cls) {
-    case message_class::command:
-      return 0;
-    case message_class::alarm_event:
-    case message_class::event:
-      return 1;
-    case message_class::state:
-      return 2;
-  }
-  return 2;
-}
-}  // namespace
-
 std::vector<outbox_entry> outbox::pending_entries() const {
   std::vector<outbox_entry> out;
   out.reserve(pending_.size());
-  for (int rank = 0; rank <= 2; ++rank) {
-    for (const outbox_id id : pending_) {
-      const outbound_message& m = entries_.at(id).message;
-      if (send_rank(m.cls) == rank) out.push_back(outbox_entry{id, m});
-    }
+  for (const outbox_id id : pending_) {
+    out.push_back(outbox_entry{id, entries_.at(id).message});
   }
   return out;
-}
-
-outbox_id outbox::next_pending() const {
-  const auto first_of = [&](message_class cls) -> std::optional<outbox_id> {
-    const auto& ids = pending_by_class_[class_index(cls)];
-    if (ids.empty()) return std::nullopt;
-    return *ids.begin();
-  };
-  if (const auto command = first_of(message_class::command)) return *command;
-  const auto alarm = first_of(message_class::alarm_event);
-  const auto event = first_of(message_class::event);
-  if (alarm && event) return std::min(*alarm, *event);
-  if (alarm) return *alarm;
-  if (event) return *event;
-  return *pending_.begin();
 }
 
 void outbox::erase(slot_map::iterator it) {

@@ -6,15 +6,10 @@
 // The outbox is pure bookkeeping: no clock, no threads, no I/O; the MQTT link drives it.
 //
 // Rules:
-// - Order: plant commands first, then events (alarm events and others together, since they
-//   share one topic and a subscriber must see them in the order they were made), then
-//   states; within each oldest first (ids increase with every push). Why: after a reconnect
-//   or a reload thousands of retained states wait at once, and a valve command or an alarm
-//   made meanwhile must not wait behind them (safety first). Only the order across topics
-//   changes: each topic's messages still go out in the order they were pushed.
+// - Order: entries are sent oldest first (ids increase with every push).
 // - Keyed entries: `state` and `command` messages are keyed by topic; only the latest
 //   matters. A newer one replaces a waiting (pending) older one and takes its place at the
-//   end of its queue, so within a class the order subscribers see follows the core's.
+//   end of the queue, so the order subscribers see still follows the order of the core.
 //   If the older one is already in flight it is left alone, but marked superseded: should
 //   its send fail it is discarded instead of being sent again.
 // - Keyed entries are never dropped for lack of room and do not count against the
@@ -82,8 +77,8 @@ class outbox {
   // in-flight unkeyed entries. A keyed message always gets an id.
   std::optional<outbox_id> push(outbound_message message);
 
-  // Marks the next pending entries (in the order of the rules above) in flight and returns
-  // copies of them, so that no more than max_in_flight entries are in flight in total.
+  // Marks the oldest pending entries in flight and returns copies of them, so that no
+  // more than max_in_flight entries are in flight in total.
   std::vector<outbox_entry> take_next_to_send(std::size_t max_in_flight);
 
   // The broker acknowledged the message: the entry is removed whatever its state
@@ -139,8 +134,6 @@ class outbox {
   // The pending entry to drop for an incoming message of class incoming, or nullopt
   // when the incoming message itself is the one to drop.
   [[nodiscard]] std::optional<outbox_id> choose_victim(message_class incoming) const;
-  // The pending entry to send next (there is at least one).
-  [[nodiscard]] outbox_id next_pending() const;
   bool return_to_pending(slot_map::iterator it);
 
   std::size_t capacity_;
