@@ -37,8 +37,11 @@ TEST(FaultService, SigkilledThirtyTimesWhileWritingRestoresStateExactly) {
       "room-a", [](const nlohmann::json& j) { return j["band"] == "condensing"; }, 10s));
   site.watcher->publish("dm/cmd/ack", R"({"zone":"room-a","by":"fault-suite"})");
   site.watcher->publish("dm/cmd/shelve", R"({"zone":"room-b","by":"fault-suite","minutes":600,"reason":"suite"})");
+  // Active as well: the state from before the alarm also says acknowledged.
   const auto acked = site.wait_zone(
-      "room-a", [](const nlohmann::json& j) { return j["alarm"]["acknowledged"] == true; }, 10s);
+      "room-a",
+      [](const nlohmann::json& j) { return j["alarm"]["active"] == true && j["alarm"]["acknowledged"] == true; },
+      10s);
   const auto shelved = site.wait_zone(
       "room-b", [](const nlohmann::json& j) { return j["alarm"]["shelved_until"].is_string(); }, 10s);
   ASSERT_TRUE(acked && shelved);
