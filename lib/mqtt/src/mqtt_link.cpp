@@ -33,7 +33,6 @@ constexpr std::chrono::milliseconds k_destructor_shutdown_timeout{1000};
 // A failed connect is explained by a TCP probe of the broker's address; this bounds it.
 constexpr std::chrono::milliseconds k_tcp_probe_timeout{1000};
 
-
 void* to_context(std::uint64_t value) { return reinterpret_cast<void*>(static_cast<std::uintptr_t>(value)); }
 std::uint64_t from_context(void* context) {
   return static_cast<std::uint64_t>(reinterpret_cast<std::uintptr_t>(context));
@@ -85,12 +84,13 @@ class forwarding_listener final : public ::mqtt::iaction_listener {
   handler on_failure_;
 };
 
-// One connection's client object and the listeners its tokens point to.
+// One connection's client object and the listeners its tokens point to (declared first,
+// so that they outlive the client when it is destroyed implicitly).
 struct library_client {
-  std::unique_ptr<::mqtt::async_client> client;
   std::unique_ptr<forwarding_listener> delivery;
   std::unique_ptr<forwarding_listener> subscribe;
   std::unique_ptr<forwarding_listener> status;
+  std::unique_ptr<::mqtt::async_client> client;
 };
 
 // The link's state machine, documented in mqtt_link.h ("States").
@@ -127,37 +127,37 @@ struct mqtt_link::impl {
     }
     try {
       // No persistence object: Paho's file persistence would write into the working directory.
-      client_ = std::make_unique<::mqtt::async_client>(options_.broker.uri, options_.broker.client_id,
-                                                       detail::make_create_options(options_), nullptr);
+      current_.client = std::make_unique<::mqtt::async_client>(options_.broker.uri, options_.broker.client_id,
+                                                               detail::make_create_options(options_), nullptr);
     } catch (const ::mqtt::exception& e) {
       return "broker.uri " + options_.broker.uri + ": the client library refused it: " + e.what();
     }
-    delivery_listener_ = std::make_unique<forwarding_listener>(
+    current_.delivery = std::make_unique<forwarding_listener>(
         [this, generation](const ::mqtt::token& tok) {
           run_handler(generation, "delivery", [&] { on_delivery_success(tok); });
         },
         [this, generation](const ::mqtt::token& tok) {
           run_handler(generation, "delivery failure", [&] { on_delivery_failure(tok); });
         });
-    subscribe_listener_ = std::make_unique<forwarding_listener>(
+    current_.subscribe = std::make_unique<forwarding_listener>(
         [this, generation](const ::mqtt::token& tok) {
           run_handler(generation, "subscribe", [&] { on_subscribe_success(tok); });
         },
         [this, generation](const ::mqtt::token& tok) {
           run_handler(generation, "subscribe failure", [&] { on_subscribe_failure(tok); });
         });
-    status_listener_ = std::make_unique<forwarding_listener>(
-        [](const ::mqtt::token&) {},
-        [this, generation](const ::mqtt::token& tok) {
-          run_handler(generation, "status failure", [&] { on_status_failure(tok); });
-        });
-    client_->set_message_callback([this, generation](::mqtt::const_message_ptr m) {
+    current_.status = std::make_unique<forwarding_listener>([](const ::mqtt::token&) {},
+                                                            [this, generation](const ::mqtt::token& tok) {
+                                                              run_handler(generation, "status failure",
+                                                                          [&] { on_status_failure(tok); });
+                                                            });
+    current_.client->set_message_callback([this, generation](::mqtt::const_message_ptr m) {
       run_handler(generation, "message", [&] { on_message(m); });
     });
-    client_->set_connected_handler([this, generation](const std::string& cause) {
+    current_.client->set_connected_handler([this, generation](const std::string& cause) {
       run_handler(generation, "connected", [&] { on_connected(cause); });
     });
-    client_->set_connection_lost_handler([this, generation](const std::string& cause) {
+    current_.client->set_connection_lost_handler([this, generation](const std::string& cause) {
       run_handler(generation, "connection lost", [&] { on_connection_lost(cause); });
     });
     return {};
@@ -173,10 +173,11 @@ struct mqtt_link::impl {
   // The old client is retired, not destroyed at once: the library calls the connection-lost
   // handler on a thread of its own and still reads the client object after our handler has
   // returned (so do token completions refused at the gate). It is destroyed at the next
-  // replacement (a connection later) or at shutdown. Waits `pause` before returning (not at
-  // once: two clients with our id taking the session from each other would loop tightly).
-  // False when the link stops meanwhile.
-  bool replace_client(std::chrono::seconds pause) {
+  // replacement (a connection later) or at shutdown. The new client is made by the next
+  // connect_with_backoff(), after reconnect_min here (not at once: two clients with our id
+  // taking the session from each other would loop tightly; Paho's own reconnect waited as
+  // long). False when the link stops meanwhile.
+  bool replace_client() {
     bool drained = true;
     {
       std::unique_lock<std::mutex> lock(mutex_);
@@ -188,24 +189,10 @@ struct mqtt_link::impl {
              "a client library handler did not return within 2 s after a lost connection; its client is left as is");
     }
     retire_client(drained);
-    {
-      std::unique_lock<std::mutex> lock(mutex_);
-      connection_lost_ = false;
-      changed_.wait_for(lock, pause, [&] { return stop_requested_locked(); });
-      if (stop_requested_locked()) return false;
-    }
-    // The same URI made a client at create(); should the library refuse now, keep trying.
-    auto backoff = options_.reconnect_min;
-    while (true) {
-      const std::string why = make_client();
-      if (why.empty()) return true;
-      report(link_report_level::error, "no new client after a lost connection: " + why + "; next attempt in " +
-                                           std::to_string(backoff.count()) + " s");
-      std::unique_lock<std::mutex> lock(mutex_);
-      changed_.wait_for(lock, backoff, [&] { return stop_requested_locked(); });
-      if (stop_requested_locked()) return false;
-      backoff = std::min(backoff * 2, options_.reconnect_max);
-    }
+    std::unique_lock<std::mutex> lock(mutex_);
+    connection_lost_ = false;
+    changed_.wait_for(lock, options_.reconnect_min, [&] { return stop_requested_locked(); });
+    return !stop_requested_locked();
   }
 
   // The current client and its listeners become the retired set; the set retired before
@@ -213,8 +200,8 @@ struct mqtt_link::impl {
   // destroyed: it is left allocated, which a report has already said.
   void retire_client(bool drained) {
     library_client previous = std::move(retired_);
-    retired_ = library_client{std::move(client_), std::move(delivery_listener_), std::move(subscribe_listener_),
-                              std::move(status_listener_)};
+    retired_ = std::move(current_);
+    current_ = library_client{};
     if (retired_.client) {
       try {
         retired_.client->disable_callbacks();
@@ -248,9 +235,7 @@ struct mqtt_link::impl {
 
   // Shutdown: the current client and the retired one.
   void dispose_client() {
-    library_client current{std::move(client_), std::move(delivery_listener_), std::move(subscribe_listener_),
-                           std::move(status_listener_)};
-    destroy(current);
+    destroy(current_);
     destroy(retired_);
   }
 
@@ -387,12 +372,12 @@ struct mqtt_link::impl {
       sender_.join();
     }
 
-    if (client_ && client_->is_connected()) {
+    if (current_.client && current_.client->is_connected()) {
       const auto left =
           std::chrono::duration_cast<std::chrono::milliseconds>(deadline - std::chrono::steady_clock::now());
       const auto disconnect_timeout = std::max(left, k_min_disconnect_timeout);
       try {
-        if (!client_->disconnect(disconnect_timeout)->wait_for(disconnect_timeout + k_wait_slice)) {
+        if (!current_.client->disconnect(disconnect_timeout)->wait_for(disconnect_timeout + k_wait_slice)) {
           report(link_report_level::warning, "disconnect from " + options_.broker.uri + " timed out");
         }
       } catch (const ::mqtt::exception& e) {
@@ -428,7 +413,7 @@ struct mqtt_link::impl {
   // reconnect did: growing it for short connections was tried and made recovery from a
   // broker that restarts every few seconds take up to reconnect_max each time.
   void run_sender() {
-    while (connect_with_backoff() && send_until_lost() && replace_client(options_.reconnect_min)) {
+    while (connect_with_backoff() && send_until_lost() && replace_client()) {
     }
   }
 
@@ -462,7 +447,9 @@ struct mqtt_link::impl {
   }
 
   // Retries on the link's back-off until a connect succeeds (true) or the link is stopped
-  // (false). The library's automatic reconnect is off: this is the only retry.
+  // (false). The library's automatic reconnect is off: this is the only retry. After a loss
+  // it first makes the new client; should the library refuse one (the same URI made a
+  // client at create()), that counts as a failed attempt.
   bool connect_with_backoff() {
     auto backoff = options_.reconnect_min;
     while (true) {
@@ -472,25 +459,16 @@ struct mqtt_link::impl {
           return false;
         }
       }
-      std::string failure;
-      try {
-        const ::mqtt::token_ptr tok = client_->connect(connect_options_);
-        const auto give_up = std::chrono::steady_clock::now() + options_.connect_timeout + std::chrono::seconds(2);
-        bool done = false;
-        while (!(done = tok->wait_for(k_wait_slice))) {
-          if (stopping() || std::chrono::steady_clock::now() > give_up) {
+      std::string failure = current_.client ? std::string{} : make_client();
+      if (failure.empty()) {
+        switch (attempt_connect(failure)) {
+          case attempt::connected:
+            return true;  // the connected handler subscribes and sets the session up
+          case attempt::stopped:
+            return false;  // shutdown destroys the client with the attempt pending (tested)
+          case attempt::failed:
             break;
-          }
         }
-        if (done) {
-          return true;  // the connected handler subscribes and sets the session up
-        }
-        if (stopping()) {
-          return false;  // shutdown destroys the client with the attempt pending (tested)
-        }
-        failure = "no answer within " + std::to_string(options_.connect_timeout.count()) + " s";
-      } catch (const ::mqtt::exception& e) {
-        failure = describe(e) + explain_connect_failure(e.get_return_code());
       }
       {
         std::lock_guard<std::mutex> lock(mutex_);
@@ -505,6 +483,29 @@ struct mqtt_link::impl {
       }
       backoff = std::min(backoff * 2, options_.reconnect_max);
     }
+  }
+
+  enum class attempt { connected, stopped, failed };
+
+  // One connect of the current client, waited for in slices so that a stop is seen; on
+  // failure `failure` says why.
+  attempt attempt_connect(std::string& failure) {
+    try {
+      const ::mqtt::token_ptr tok = current_.client->connect(connect_options_);
+      const auto give_up = std::chrono::steady_clock::now() + options_.connect_timeout + std::chrono::seconds(2);
+      bool done = false;
+      while (!(done = tok->wait_for(k_wait_slice))) {
+        if (stopping() || std::chrono::steady_clock::now() > give_up) {
+          break;
+        }
+      }
+      if (done) return attempt::connected;
+      if (stopping()) return attempt::stopped;
+      failure = "no answer within " + std::to_string(options_.connect_timeout.count()) + " s";
+    } catch (const ::mqtt::exception& e) {
+      failure = describe(e) + explain_connect_failure(e.get_return_code());
+    }
+    return attempt::failed;
   }
 
   // Paho says "TCP/TLS connect failure" for a refused port and a failed handshake alike.
@@ -539,8 +540,9 @@ struct mqtt_link::impl {
     for (std::size_t i = 0; i < batch.size(); ++i) {
       const outbox_entry& e = batch[i];
       try {
-        (void)client_->publish(::mqtt::make_message(e.message.topic, e.message.payload, k_qos, e.message.retained),
-                               to_context(e.id), *delivery_listener_);
+        (void)current_.client->publish(
+            ::mqtt::make_message(e.message.topic, e.message.payload, k_qos, e.message.retained), to_context(e.id),
+            *current_.delivery);
         std::lock_guard<std::mutex> lock(mutex_);
         ++published_;
       } catch (const ::mqtt::exception& ex) {
@@ -674,7 +676,7 @@ struct mqtt_link::impl {
     try {
       const auto filters = ::mqtt::string_collection::create(options_.subscriptions);
       const ::mqtt::iasync_client::qos_collection qos(options_.subscriptions.size(), k_qos);
-      (void)client_->subscribe(filters, qos, to_context(epoch), *subscribe_listener_);
+      (void)current_.client->subscribe(filters, qos, to_context(epoch), *current_.subscribe);
     } catch (const ::mqtt::exception& e) {
       report(link_report_level::error, "subscribe request failed: " + describe(e));
     }
@@ -716,8 +718,9 @@ struct mqtt_link::impl {
     }
     if (announce) {
       try {
-        (void)client_->publish(::mqtt::make_message(options_.status_topic, options_.online_payload, k_qos, true),
-                               nullptr, *status_listener_);
+        (void)current_.client->publish(
+            ::mqtt::make_message(options_.status_topic, options_.online_payload, k_qos, true), nullptr,
+            *current_.status);
       } catch (const ::mqtt::exception& e) {
         report(link_report_level::error, "publish of the online status failed: " + describe(e));
       }
@@ -850,13 +853,11 @@ struct mqtt_link::impl {
 
   inbound_queue inbound_;
   std::thread sender_;
-  // The current client and the listeners its tokens point to (made and disposed of
-  // together). Last members: destroyed first, while everything their handlers touch exists.
-  std::unique_ptr<forwarding_listener> delivery_listener_;
-  std::unique_ptr<forwarding_listener> subscribe_listener_;
-  std::unique_ptr<forwarding_listener> status_listener_;
-  std::unique_ptr<::mqtt::async_client> client_;
-  library_client retired_;  // the client of the previous connection (see replace_client())
+  // The current client with the listeners its tokens point to, and the previous one (see
+  // replace_client()). Last members: destroyed first, while everything their handlers touch
+  // exists.
+  library_client current_;
+  library_client retired_;
 };
 
 // ---- mqtt_link ------------------------------------------------------------------------
