@@ -9,6 +9,7 @@
 #include <string>
 #include <vector>
 
+#include "bench_site.h"
 #include "dewmargin/config.h"
 #include "dewmargin/engine.h"
 #include "dewmargin/outbox.h"
@@ -18,39 +19,12 @@ namespace {
 
 constexpr std::size_t k_zones = 10'000;
 
-input_config input_on(const std::string& topic) {
-  input_config c;
-  c.topic = topic;
-  return c;
-}
-
-// Each zone: air temperature, humidity, one surface and a valve; one loop per 100 zones.
-// Names are invented; the shape is the one the engine benchmark uses.
+// The benchmarks' invented site (bench/bench_site.h: air temperature, humidity, one surface
+// and a valve per zone, one loop per 100 zones), with the given stale_after_s everywhere.
 site_config large_site(std::size_t zones, double stale_after_s) {
-  site_config s;
-  s.site = "startup";
-  s.broker.client_id = "startup";
-  s.publish.prefix = "dm";
-  const std::size_t loops = std::max<std::size_t>(1, zones / 100);
-  for (std::size_t l = 0; l < loops; ++l) {
-    loop_config lc;
-    lc.id = "loop-" + std::to_string(l);
-    lc.supply_temp = input_on("plant/" + lc.id + "/supply");
-    lc.setpoint.topic = "plant/" + lc.id + "/sp";
-    lc.stale_after_s = stale_after_s;
-    s.loops.push_back(lc);
-  }
-  for (std::size_t z = 0; z < zones; ++z) {
-    zone_config zc;
-    zc.id = "z" + std::to_string(z);
-    zc.loop = "loop-" + std::to_string(z % loops);
-    zc.air_temp = input_on("b/" + zc.id + "/temp");
-    zc.humidity.push_back(input_on("b/" + zc.id + "/rh"));
-    zc.surfaces.push_back(input_on("b/" + zc.id + "/surface"));
-    zc.valve = valve_config{"b/" + zc.id + "/valve", "open", "closed", 600.0};
-    zc.thresholds.stale_after_s = stale_after_s;
-    s.zones.push_back(zc);
-  }
+  site_config s = bench::bench_site(static_cast<int>(zones));
+  for (loop_config& l : s.loops) l.stale_after_s = stale_after_s;
+  for (zone_config& z : s.zones) z.thresholds.stale_after_s = stale_after_s;
   return s;
 }
 

@@ -32,7 +32,6 @@ bool non_empty_text(const map_reader& m, const char* key, presence p, std::strin
   return true;
 }
 
-
 bool is_tls_scheme(const std::string& uri) { return broker_transport_of(uri) == broker_transport::tls; }
 
 // scheme://host[:port], the forms Paho takes for MQTT over TCP and TLS.

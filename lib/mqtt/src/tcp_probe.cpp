@@ -9,17 +9,17 @@
 #include <cerrno>
 #include <memory>
 
+#include "dewmargin/broker_uri.h"
+
 namespace dewmargin::detail {
 
 std::optional<host_port> split_broker_uri(const std::string& uri) {
   const auto scheme_end = uri.find("://");
   if (scheme_end == std::string::npos) return std::nullopt;
-  const std::string scheme = uri.substr(0, scheme_end);
   std::string rest = uri.substr(scheme_end + 3);
   rest = rest.substr(0, rest.find('/'));
   host_port hp;
-  const bool tls = scheme == "ssl" || scheme == "mqtts" || scheme == "wss";
-  hp.port = tls ? "8883" : "1883";
+  hp.port = broker_transport_of(uri) == broker_transport::tls ? "8883" : "1883";
   if (!rest.empty() && rest.front() == '[') {
     const auto close = rest.find(']');
     if (close == std::string::npos) return std::nullopt;
