@@ -149,6 +149,52 @@ void engine_reading(benchmark::State& state) {
 }
 BENCHMARK(engine_reading)->ArgName("zones")->Arg(10)->Arg(1000);
 
+// ---- engine::tick at rest ------------------------------------------------------------------
+// The once-a-second tick of a quiet site: every input reported a moment ago and nothing moves.
+// The figure is per zone (items = zones), the cost every known zone adds to each second.
+void engine_tick(benchmark::State& state) {
+  const int zones = static_cast<int>(state.range(0));
+  dewmargin::engine core(dewmargin::bench::bench_site(zones));
+  dewmargin::engine_output out;
+  timestamp now = k_start;
+  core.begin(now, {}, out);
+  const std::vector<std::string> topics = dewmargin::bench::bench_zone_topics(zones);
+  const auto& payloads = dewmargin::bench::k_bench_payloads;
+  const auto report_all = [&] {
+    for (std::size_t t = 0; t < topics.size(); ++t) core.on_message(topics[t], payloads[t % 3][0], now, out);
+    for (int l = 0; l < std::max(1, zones / 100); ++l) {
+      core.on_message("plant/loop-" + std::to_string(l) + "/supply", "16.0", now, out);
+    }
+  };
+  report_all();
+  // Past the start-up permissive and the first publications, so the timed ticks are the quiet ones.
+  for (int s = 0; s < 120; ++s) {
+    now += std::chrono::seconds(1);
+    core.tick(now, out);
+  }
+  out.clear();
+  int seconds = 0;
+  std::size_t published = 0;
+  for (auto _ : state) {
+    now += std::chrono::seconds(1);
+    core.tick(now, out);
+    published += out.messages.size();
+    out.clear();
+    // Inputs report every 30 s (well within stale_after_s), outside the timed part.
+    if (++seconds == 30) {
+      seconds = 0;
+      state.PauseTiming();
+      report_all();
+      out.clear();
+      state.ResumeTiming();
+    }
+  }
+  state.SetItemsProcessed(state.iterations() * zones);
+  state.counters["published_per_tick"] =
+      static_cast<double>(published) / static_cast<double>(std::max<benchmark::IterationCount>(1, state.iterations()));
+}
+BENCHMARK(engine_tick)->ArgName("zones")->Arg(1000)->Arg(10000)->Unit(benchmark::kMicrosecond);
+
 // ---- payload decoding -------------------------------------------------------------------
 void decode_bare(benchmark::State& state) {
   const dewmargin::input_config cfg = dewmargin::bench::bench_input("b/z1/temp");
