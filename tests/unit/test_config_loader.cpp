@@ -756,5 +756,52 @@ TEST(ConfigLoader, DuplicatesAreFoundAmongManyZones) {
       << r.errors[1].to_string();
 }
 
+// The loader builds its own compact tree from the YAML parser's events (yaml_document.h), not
+// yaml-cpp's node graph: anchors and aliases still stand for the anchored node, wherever it is
+// used, and an alias keeps the place of the anchored node.
+TEST(ConfigLoader, AnAliasStandsForItsAnchoredNode) {
+  const auto r = load_config_text(k_head + k_loop +
+                                      "zones:\n"
+                                      "  - {id: z1, loop: la, air_temp: {topic: b/t}, humidity: &rh {topic: b/h, "
+                                      "stale_after_s: 90}}\n"
+                                      "  - {id: z2, loop: la, air_temp: {topic: b/t2}, humidity: {topic: b/h2}, "
+                                      "thresholds_from: *rh}\n",
+                                  "a.yaml");
+  // thresholds_from is no key: the alias is read as the anchored map, the key still refused.
+  ASSERT_EQ(r.errors.size(), 1u) << all_errors(r);
+  EXPECT_EQ(r.errors[0].line, 8);
+  EXPECT_NE(r.errors[0].message.find("unknown key 'thresholds_from'"), std::string::npos) << r.errors[0].to_string();
+
+  const auto reused = load_config_text(k_head + k_loop +
+                                           "defaults: &d {stale_after_s: 120}\n"
+                                           "zones:\n"
+                                           "  - {id: z1, loop: la, air_temp: {topic: b/t}, humidity: {topic: b/h}}\n"
+                                           "plausibility: *d\n",
+                                       "a.yaml");
+  // The aliased map is read again in its new place, with that section's keys.
+  ASSERT_EQ(reused.errors.size(), 1u) << all_errors(reused);
+  EXPECT_EQ(reused.errors[0].line, 6);  // the anchored map's place
+  EXPECT_NE(reused.errors[0].message.find("unknown key 'stale_after_s'"), std::string::npos)
+      << reused.errors[0].to_string();
+
+  const auto ok = load_config_text(k_head + k_loop +
+                                       "zones:\n"
+                                       "  - {id: z1, loop: la, air_temp: &t {topic: b/t}, humidity: {topic: b/h}}\n"
+                                       "  - {id: z2, loop: la, air_temp: {topic: b/t2}, humidity: {topic: b/h2}}\n"
+                                       "  - {id: z3, loop: la, air_temp: *t, humidity: {topic: b/h3}}\n",
+                                   "a.yaml");
+  // z3 reads z1's topic through the alias: the one-reader rule still sees it.
+  ASSERT_EQ(ok.errors.size(), 1u) << all_errors(ok);
+  EXPECT_NE(ok.errors[0].message.find("topic 'b/t' is already read by zone 'z1' air_temp"), std::string::npos)
+      << ok.errors[0].to_string();
+}
+
+// A long list whose items are not maps reserves nothing and reports each item.
+TEST(ConfigLoader, ZonesThatAreNotMapsAreEachReported) {
+  const auto r = load_config_text(k_head + k_loop + "zones: [1, 2, [3]]\n", "n.yaml");
+  ASSERT_EQ(r.errors.size(), 3u) << all_errors(r);
+  for (const auto& e : r.errors) EXPECT_NE(e.message.find("each zone must be a map"), std::string::npos);
+}
+
 }  // namespace
 }  // namespace dewmargin

@@ -1,15 +1,13 @@
 // Entry points: read the file, parse the YAML, hand the document to the section readers.
 #include "dewmargin/config_loader.h"
 
-#include <yaml-cpp/eventhandler.h>
+#include <yaml-cpp/exceptions.h>
 
 #include <cerrno>
 #include <cstdio>
 #include <cstring>
 #include <memory>
 #include <optional>
-#include <sstream>
-#include <vector>
 
 #include "config_reading.h"
 #include "text_check.h"
@@ -23,45 +21,6 @@ using config_detail::source_mark;
 source_mark mark_or_start(const YAML::Mark& m) {
   if (m.is_null()) return {1, 1};
   return {m.line + 1, m.column + 1};
-}
-
-// Notes where each document's top node stands, and nothing else.
-class document_starts : public YAML::EventHandler {
- public:
-  std::vector<YAML::Mark> marks;
-  void OnDocumentStart(const YAML::Mark&) override { top_seen_ = false; }
-  void OnDocumentEnd() override {}
-  void OnNull(const YAML::Mark& mark, YAML::anchor_t) override { node(mark); }
-  void OnAlias(const YAML::Mark& mark, YAML::anchor_t) override { node(mark); }
-  void OnScalar(const YAML::Mark& mark, const std::string&, YAML::anchor_t, const std::string&) override { node(mark); }
-  void OnSequenceStart(const YAML::Mark& mark, const std::string&, YAML::anchor_t, YAML::EmitterStyle::value) override {
-    node(mark);
-  }
-  void OnSequenceEnd() override {}
-  void OnMapStart(const YAML::Mark& mark, const std::string&, YAML::anchor_t, YAML::EmitterStyle::value) override {
-    node(mark);
-  }
-  void OnMapEnd() override {}
-
- private:
-  void node(const YAML::Mark& mark) {
-    if (!top_seen_) marks.push_back(mark);
-    top_seen_ = true;
-  }
-  bool top_seen_ = false;
-};
-
-// Where a second document starts, if there is one. Not YAML::LoadAll(): in yaml-cpp 0.7.0
-// it never returns on some junk (a lone ","), as its parser reports one empty document
-// after another; so only two documents are asked for.
-std::optional<YAML::Mark> second_document(const std::string& text) {
-  std::istringstream in(text);
-  YAML::Parser parser(in);
-  document_starts starts;
-  for (int i = 0; i < 2 && parser.HandleNextDocument(starts); ++i) {
-  }
-  if (starts.marks.size() < 2) return std::nullopt;
-  return starts.marks[1];
 }
 
 // A second document needs a marker line ("---" or "...") after the first document's content;
@@ -95,15 +54,15 @@ config_load_result load_config_text(std::string_view yaml_text, const std::strin
       return result;
     }
     const std::string text(yaml_text);
-    const YAML::Node document = YAML::Load(text);  // the first document only
-    if (document.IsNull()) {
+    const auto document = config_detail::yaml_document::parse(text, may_hold_a_second_document(text));
+    if (document.root().is_null()) {
       diag.error({1, 1}, "the file holds no config (expected site, broker, storage, loops and zones)");
     } else {
-      if (const auto second = may_hold_a_second_document(text) ? second_document(text) : std::nullopt) {
-        diag.error(mark_or_start(*second), "only one YAML document is expected; a second one starts here");
+      if (const auto& second = document.second_start()) {
+        diag.error(*second, "only one YAML document is expected; a second one starts here");
       }
       config_detail::reading r{config, index, diag};
-      config_detail::read_site(document, r);
+      config_detail::read_site(document.root(), r);
     }
   } catch (const YAML::ParserException& e) {
     diag.error(mark_or_start(e.mark), "YAML syntax error: " + e.msg);

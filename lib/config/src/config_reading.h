@@ -65,13 +65,13 @@ enum class input_kind { temperature, humidity, flow, binary };
 
 // `{topic, field?, unit?, stale_after_s?}` (binary inputs: `active` instead of `unit`).
 // `owner` names the input in messages ("zone 'level2-east' air_temp").
-[[nodiscard]] std::optional<input_config> read_input(const YAML::Node& node, source_mark at, const std::string& name,
+[[nodiscard]] std::optional<input_config> read_input(const yaml_node& node, source_mark at, const std::string& name,
                                                      const std::string& owner, input_kind kind, reading& r);
 
 // An output topic at `key` of `m`: checked like an input topic and recorded.
 [[nodiscard]] std::optional<std::string> read_output_topic(const map_reader& m, const std::string& owner, reading& r);
 
-[[nodiscard]] std::optional<valve_config> read_valve(const YAML::Node& node, source_mark at, const std::string& owner,
+[[nodiscard]] std::optional<valve_config> read_valve(const yaml_node& node, source_mark at, const std::string& owner,
                                                      reading& r);
 
 // Topic rules common to inputs and outputs; reports and returns false when broken.
@@ -89,15 +89,15 @@ bool check_id(const located<std::string>& id, const char* what, diagnostics& dia
 // margin_alarm_k must stay below margin_warn_k; reported at `defaults:`.
 void check_defaults_margins(const band_thresholds& t, const threshold_marks& marks, diagnostics& diag);
 
-void read_loops(const YAML::Node& node, source_mark at, reading& r);
-void read_zones(const YAML::Node& node, source_mark at, reading& r);
-void read_dehumidifiers(const YAML::Node& node, source_mark at, reading& r);
+void read_loops(const yaml_node& node, source_mark at, reading& r);
+void read_zones(const yaml_node& node, source_mark at, reading& r);
+void read_dehumidifiers(const yaml_node& node, source_mark at, reading& r);
 
 // The `http:` section (read_http.cpp).
-void read_http(const YAML::Node& node, reading& r);
+void read_http(const yaml_node& node, reading& r);
 
 // The whole document: sections, then the checks across them.
-void read_site(const YAML::Node& root, reading& r);
+void read_site(const yaml_node& root, reading& r);
 void check_across_sections(reading& r);
 
 }  // namespace dewmargin::config_detail

@@ -34,7 +34,7 @@ bool is_loopback(const std::string& host) {
 
 }  // namespace
 
-void read_http(const YAML::Node& node, reading& r) {
+void read_http(const yaml_node& node, reading& r) {
   const map_reader m(node, "http", {"listen", "token_file"}, r.diag);
   http_config h;
   bool ok = true;

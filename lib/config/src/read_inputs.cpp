@@ -58,15 +58,15 @@ std::string unit_list(const std::vector<unit_choice>& choices) {
 bool read_word_list(const map_reader& m, const char* key, const char* example, std::vector<std::string>& words) {
   const std::string name = key;
   if (!m.has(key)) return name != "active" || m.require(key);
-  const YAML::Node& node = *m.value(key);
+  const yaml_node& node = *m.value(key);
   const source_mark at = m.value_mark(key);
-  if (!node.IsSequence() || node.size() == 0) {
+  if (!node.is_sequence() || node.size() == 0) {
     m.diag().error(
         at, "'" + name + "' must be a non-empty list of payloads, e.g. [" + example + "], got " + describe(node));
     return false;
   }
   bool ok = true;
-  for (const auto& item : node) {
+  for (const auto& item : node.items()) {
     const source_mark item_at = mark_of(item);
     // YAML reads 1 and true as numbers and booleans; a payload is text, so keep the text.
     auto text = scalar_text(item, "an '" + name + "' payload", item_at, m.diag());
@@ -86,10 +86,10 @@ bool read_word_list(const map_reader& m, const char* key, const char* example, s
 // A word may not mean both: reported at the inactive one.
 bool check_words_disjoint(const map_reader& m, const input_config& in) {
   if (in.inactive.empty()) return true;
-  const YAML::Node& node = *m.value("inactive");
+  const yaml_node& node = *m.value("inactive");
   bool ok = true;
   std::size_t i = 0;
-  for (const auto& item : node) {
+  for (const auto& item : node.items()) {
     const std::string& word = in.inactive[i++];
     if (matches_switch_word(word, in.active)) {
       m.diag().error(mark_of(item), m.context() + ": payload '" + word + "' is listed as both active and inactive");
@@ -149,7 +149,7 @@ bool check_id(const located<std::string>& id, const char* what, diagnostics& dia
   return true;
 }
 
-std::optional<input_config> read_input(const YAML::Node& node, source_mark at, const std::string& name,
+std::optional<input_config> read_input(const yaml_node& node, source_mark at, const std::string& name,
                                        const std::string& owner, input_kind kind, reading& r) {
   if (!expect_map(node, name, " like { topic: ... }", at, r.diag)) return std::nullopt;
   std::vector<std::string> keys{"topic", "field", "stale_after_s"};
@@ -217,7 +217,7 @@ std::optional<std::string> read_output_topic(const map_reader& m, const std::str
   return topic->value;
 }
 
-std::optional<valve_config> read_valve(const YAML::Node& node, source_mark at, const std::string& owner, reading& r) {
+std::optional<valve_config> read_valve(const yaml_node& node, source_mark at, const std::string& owner, reading& r) {
   if (!expect_map(node, "valve", " like { topic: ... }", at, r.diag)) return std::nullopt;
   const map_reader m(node, owner, {"topic", "open", "closed", "reopen_after_s", "close_ahead_min", "open_margin_k"},
                      r.diag);

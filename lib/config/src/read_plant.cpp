@@ -9,18 +9,18 @@ namespace {
 // "zone 'level2-east'", or "zone #2" while the id is missing or unusable.
 // Looks by iterating: yaml-cpp's operator[] on a missing key yields a node whose
 // accessors throw.
-std::string entity_context(const YAML::Node& item, const char* what, int index) {
-  for (const auto& kv : item) {
-    if (kv.first.IsScalar() && kv.first.Scalar() == "id" && kv.second.IsScalar() && !kv.second.Scalar().empty()) {
-      return std::string(what) + " '" + kv.second.Scalar() + "'";
+std::string entity_context(const yaml_node& item, const char* what, int index) {
+  for (const auto& kv : item.pairs()) {
+    if (kv.key.is_scalar() && kv.key.scalar() == "id" && kv.value.is_scalar() && !kv.value.scalar().empty()) {
+      return std::string(what) + " '" + kv.value.scalar() + "'";
     }
   }
   return std::string(what) + " #" + std::to_string(index);
 }
 
 // A list section; empty (`zones:` with nothing under it) counts as no entries.
-bool expect_list(const YAML::Node& node, const char* name, const char* entries, source_mark at, diagnostics& diag) {
-  if (node.IsSequence() || node.IsNull()) return true;
+bool expect_list(const yaml_node& node, const char* name, const char* entries, source_mark at, diagnostics& diag) {
+  if (node.is_sequence() || node.is_null()) return true;
   diag.error(at, std::string("'") + name + "' must be a list of " + entries + ", got " + describe(node));
   return false;
 }
@@ -50,7 +50,7 @@ bool read_range_c(const map_reader& m, double& min_c, double& max_c) {
   return true;
 }
 
-std::optional<setpoint_config> read_setpoint(const YAML::Node& node, source_mark at, const std::string& owner,
+std::optional<setpoint_config> read_setpoint(const yaml_node& node, source_mark at, const std::string& owner,
                                              reading& r) {
   if (!expect_map(node, "setpoint", " like { topic: ..., min_c: ..., max_c: ... }", at, r.diag)) return std::nullopt;
   const map_reader m(node, owner, {"topic", "min_c", "max_c", "reset_margin_k", "fall_k_per_min"}, r.diag);
@@ -88,22 +88,22 @@ bool read_required_input(const map_reader& m, const char* key, input_kind kind, 
 bool read_input_list(const map_reader& m, const char* key, input_kind kind, bool at_least_one,
                      std::vector<input_config>& target, reading& r) {
   if (!m.has(key)) return !at_least_one || m.require(key);
-  const YAML::Node& node = *m.value(key);
+  const yaml_node& node = *m.value(key);
   const source_mark at = m.value_mark(key);
   const std::string owner = m.context() + " " + key;
-  if (node.IsMap()) {
+  if (node.is_map()) {
     auto in = read_input(node, at, key, owner, kind, r);
     if (in) target.push_back(std::move(*in));
     return in.has_value();
   }
-  if (node.IsNull() && !at_least_one) return true;
-  if (!node.IsSequence() || (at_least_one && node.size() == 0)) {
+  if (node.is_null() && !at_least_one) return true;
+  if (!node.is_sequence() || (at_least_one && node.size() == 0)) {
     r.diag.error(at, std::string("'") + key + "' must be a map like { topic: ... } or a list of them" +
                          (at_least_one ? " (at least one)" : "") + ", got " + describe(node));
     return false;
   }
   bool ok = true;
-  for (const auto& item : node) {
+  for (const auto& item : node.items()) {
     auto in = read_input(item, mark_of(item), key, owner, kind, r);
     if (in) {
       target.push_back(std::move(*in));
@@ -156,12 +156,12 @@ void check_defaults_margins(const band_thresholds& t, const threshold_marks& mar
   check_margin_order("defaults", t, marks, false, diag);
 }
 
-void read_loops(const YAML::Node& node, source_mark at, reading& r) {
+void read_loops(const yaml_node& node, source_mark at, reading& r) {
   if (!expect_list(node, "loops", "loops", at, r.diag)) return;
   int index = 0;
-  for (const auto& item : node) {
+  for (const auto& item : node.items()) {
     ++index;
-    if (!item.IsMap()) {
+    if (!item.is_map()) {
       r.diag.error(mark_of(item), "each loop must be a map with id, supply_temp and setpoint, got " + describe(item));
       continue;
     }
@@ -183,19 +183,24 @@ void read_loops(const YAML::Node& node, source_mark at, reading& r) {
   }
 }
 
-void read_zones(const YAML::Node& node, source_mark at, reading& r) {
+void read_zones(const yaml_node& node, source_mark at, reading& r) {
   if (!expect_list(node, "zones", "zones", at, r.diag)) return;
-  if (node.IsNull() || node.size() == 0) {
+  if (node.is_null() || node.size() == 0) {
     r.diag.error(at, "'zones' must list at least one zone");
     return;
   }
   std::vector<std::string> keys{
       "id", "loop", "air_temp", "humidity", "surfaces", "condensation_switch", "window_contact", "valve"};
   keys.insert(keys.end(), threshold_keys().begin(), threshold_keys().end());
+  // A zone record is large: no copies while the list grows. Only maps become zones, so a
+  // long list of junk items reserves nothing.
+  const auto items = node.items();
+  r.config.zones.reserve(static_cast<std::size_t>(
+      std::count_if(items.begin(), items.end(), [](const yaml_node& n) { return n.is_map(); })));
   int index = 0;
-  for (const auto& item : node) {
+  for (const auto& item : items) {
     ++index;
-    if (!item.IsMap()) {
+    if (!item.is_map()) {
       r.diag.error(mark_of(item),
                    "each zone must be a map with id, loop, air_temp and humidity, got " + describe(item));
       continue;
@@ -224,12 +229,12 @@ void read_zones(const YAML::Node& node, source_mark at, reading& r) {
   }
 }
 
-void read_dehumidifiers(const YAML::Node& node, source_mark at, reading& r) {
+void read_dehumidifiers(const yaml_node& node, source_mark at, reading& r) {
   if (!expect_list(node, "dehumidifiers", "dehumidifiers", at, r.diag)) return;
   int index = 0;
-  for (const auto& item : node) {
+  for (const auto& item : node.items()) {
     ++index;
-    if (!item.IsMap()) {
+    if (!item.is_map()) {
       r.diag.error(mark_of(item),
                    "each dehumidifier must be a map with id, zones and dew_point_request, got " + describe(item));
       continue;
@@ -240,11 +245,11 @@ void read_dehumidifiers(const YAML::Node& node, source_mark at, reading& r) {
     dehumidifier_config d;
     if (auto id = read_id(m, "dehumidifier", r.index.dehumidifier_ids, r.diag)) d.id = *id;
     if (m.require("zones")) {
-      const YAML::Node& zones = *m.value("zones");
-      if (!zones.IsSequence() || zones.size() == 0) {
+      const yaml_node& zones = *m.value("zones");
+      if (!zones.is_sequence() || zones.size() == 0) {
         r.diag.error(m.value_mark("zones"), "'zones' must be a non-empty list of zone ids, got " + describe(zones));
       } else {
-        for (const auto& z : zones) {
+        for (const auto& z : zones.items()) {
           const source_mark z_at = mark_of(z);
           auto name = scalar_text(z, "a zone id", z_at, r.diag);
           if (!name) continue;
@@ -258,7 +263,7 @@ void read_dehumidifiers(const YAML::Node& node, source_mark at, reading& r) {
       }
     }
     if (m.require("dew_point_request")) {
-      const YAML::Node& req = *m.value("dew_point_request");
+      const yaml_node& req = *m.value("dew_point_request");
       const std::string owner = m.context() + " dew_point_request";
       if (expect_map(req, "dew_point_request", " like { topic: ..., min_c: ..., max_c: ... }",
                      m.value_mark("dew_point_request"), r.diag)) {

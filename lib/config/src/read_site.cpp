@@ -10,13 +10,13 @@ namespace {
 
 // A map section. Absent: nullopt (reported when required). Empty (`defaults:` with
 // everything commented out) counts as an empty map for optional sections.
-std::optional<YAML::Node> section(const map_reader& top, const char* key, presence p, const char* shape_hint) {
+std::optional<yaml_node> section(const map_reader& top, const char* key, presence p, const char* shape_hint) {
   if (!top.has(key)) {
     if (p == presence::required) top.require(key);
     return std::nullopt;
   }
-  const YAML::Node& node = *top.value(key);
-  if (node.IsNull() && p == presence::optional) return std::nullopt;
+  const yaml_node& node = *top.value(key);
+  if (node.is_null() && p == presence::optional) return std::nullopt;
   if (!expect_map(node, key, shape_hint, top.value_mark(key), top.diag())) return std::nullopt;
   return node;
 }
@@ -64,7 +64,7 @@ bool check_broker_uri(const located<std::string>& uri, diagnostics& diag) {
   return true;
 }
 
-void read_broker(const YAML::Node& node, reading& r) {
+void read_broker(const yaml_node& node, reading& r) {
   const map_reader m(node, "broker", {"uri", "client_id", "username", "password_file", "tls", "keepalive_s"}, r.diag);
   broker_config& b = r.config.broker;
   auto uri = m.text("uri", presence::required);
@@ -102,7 +102,7 @@ void read_broker(const YAML::Node& node, reading& r) {
   }
 }
 
-void read_storage(const YAML::Node& node, reading& r) {
+void read_storage(const yaml_node& node, reading& r) {
   const map_reader m(node, "storage", {"path", "keep_events_days", "keep_samples_days", "keep_minute_samples_days"},
                      r.diag);
   storage_config& s = r.config.storage;
@@ -112,7 +112,7 @@ void read_storage(const YAML::Node& node, reading& r) {
   m.number_into("keep_minute_samples_days", number_rule::positive, s.keep_minute_samples_days);
 }
 
-void read_publish(const YAML::Node& node, reading& r) {
+void read_publish(const yaml_node& node, reading& r) {
   const map_reader m(node, "publish", {"prefix", "min_interval_s", "setpoint_event_k"}, r.diag);
   publish_config& p = r.config.publish;
   if (m.has("prefix")) r.index.prefix.reset();  // set again below only when valid: no checks against a bad one
@@ -133,7 +133,7 @@ void read_publish(const YAML::Node& node, reading& r) {
   m.number_into("setpoint_event_k", number_rule::non_negative, p.setpoint_event_k);
 }
 
-void read_defaults(const YAML::Node& node, reading& r) {
+void read_defaults(const yaml_node& node, reading& r) {
   const map_reader m(node, "defaults", threshold_keys(), r.diag);
   r.index.defaults = read_thresholds(m, r.config.defaults);
   check_defaults_margins(r.config.defaults, r.index.defaults, r.diag);
@@ -156,7 +156,7 @@ void read_range(const map_reader& section_reader, const char* key, value_range& 
   range = v;
 }
 
-void read_plausibility(const YAML::Node& node, reading& r) {
+void read_plausibility(const yaml_node& node, reading& r) {
   const map_reader m(node, "plausibility", {"air_temp_c", "surface_c", "water_c", "humidity_pct", "flow_l_s"}, r.diag);
   plausibility_config& p = r.config.plausibility;
   read_range(m, "air_temp_c", p.air_temp_c, r);
@@ -166,7 +166,7 @@ void read_plausibility(const YAML::Node& node, reading& r) {
   read_range(m, "flow_l_s", p.flow_l_s, r);
 }
 
-void read_logging(const YAML::Node& node, reading& r) {
+void read_logging(const yaml_node& node, reading& r) {
   const map_reader m(node, "logging", {"level"}, r.diag);
   auto level = m.text("level");
   if (!level) return;
@@ -180,7 +180,7 @@ void read_logging(const YAML::Node& node, reading& r) {
   r.config.logging.level = level->value;
 }
 
-void read_clock(const YAML::Node& node, reading& r) {
+void read_clock(const yaml_node& node, reading& r) {
   const map_reader m(node, "clock", {"source", "field"}, r.diag);
   if (auto source = m.text("source")) {
     if (source->value == "wall") {
@@ -198,8 +198,8 @@ void read_clock(const YAML::Node& node, reading& r) {
 
 }  // namespace
 
-void read_site(const YAML::Node& root, reading& r) {
-  if (!root.IsMap()) {
+void read_site(const yaml_node& root, reading& r) {
+  if (!root.is_map()) {
     const source_mark at = mark_of(root);
     r.diag.error(
         at.line == 0 ? source_mark{1, 1} : at,

@@ -56,22 +56,17 @@ std::string join(const std::vector<std::string>& words) {
 
 }  // namespace
 
-source_mark mark_of(const YAML::Node& node) {
-  const YAML::Mark m = node.Mark();
-  if (m.is_null()) return {};
-  return {m.line + 1, m.column + 1};
-}
+source_mark mark_of(const yaml_node& node) { return node.mark(); }
 
-std::string describe(const YAML::Node& node) {
-  switch (node.Type()) {
-    case YAML::NodeType::Map:
+std::string describe(const yaml_node& node) {
+  switch (node.kind()) {
+    case yaml_kind::map:
       return node.size() == 0 ? "an empty map" : "a map";
-    case YAML::NodeType::Sequence:
+    case yaml_kind::sequence:
       return node.size() == 0 ? "an empty list" : "a list";
-    case YAML::NodeType::Scalar:
-      return "'" + text_excerpt(node.Scalar(), 60) + "'";
-    case YAML::NodeType::Null:
-    case YAML::NodeType::Undefined:
+    case yaml_kind::scalar:
+      return "'" + text_excerpt(node.scalar(), 60) + "'";
+    case yaml_kind::null:
       break;
   }
   return "nothing";
@@ -83,20 +78,18 @@ std::string format_number(double value) {
   return buf;
 }
 
-map_reader::map_reader(const YAML::Node& node, std::string context, const std::vector<std::string>& keys,
+map_reader::map_reader(const yaml_node& node, std::string context, const std::vector<std::string>& keys,
                        diagnostics& diag)
     : context_(std::move(context)), mark_(mark_of(node)), diag_(diag) {
   const std::string where = context_.empty() ? "at the top level" : "in " + context_;
-  // Range-for keeps yaml-cpp's by-value iterator element alive; `it->first` on its
-  // proxy draws GCC 12's dangling-pointer warning.
-  for (const auto& kv : node) {
-    const YAML::Node& k = kv.first;
+  for (const auto& kv : node.pairs()) {
+    const yaml_node& k = kv.key;
     const source_mark at = mark_of(k);
-    if (!k.IsScalar()) {
+    if (!k.is_scalar()) {
       diag_.error(at, "keys must be plain words, got " + describe(k) + " " + where);
       continue;
     }
-    const std::string& name = k.Scalar();
+    const std::string& name = k.scalar();
     if (const entry* first = find(name)) {
       diag_.error(at, "duplicate key '" + name + "' " + where + " (first at line " +
                           std::to_string(mark_of(first->key_node).line) + ")");
@@ -124,7 +117,7 @@ map_reader::map_reader(const YAML::Node& node, std::string context, const std::v
       diag_.error(at, std::move(message));
       continue;
     }
-    entries_.push_back({name, k, kv.second});
+    entries_.push_back({name, k, kv.value});
   }
 }
 
@@ -134,7 +127,7 @@ const map_reader::entry* map_reader::find(std::string_view key) const {
   return nullptr;
 }
 
-const YAML::Node* map_reader::value(std::string_view key) const {
+const yaml_node* map_reader::value(std::string_view key) const {
   const entry* e = find(key);
   return e ? &e->value : nullptr;
 }
@@ -147,7 +140,7 @@ source_mark map_reader::key_mark(std::string_view key) const {
 source_mark map_reader::value_mark(std::string_view key) const {
   const entry* e = find(key);
   if (!e) return mark_;
-  if (e->value.IsNull()) return mark_of(e->key_node);
+  if (e->value.is_null()) return mark_of(e->key_node);
   const source_mark at = mark_of(e->value);
   return at.line == 0 ? mark_of(e->key_node) : at;
 }
@@ -177,24 +170,24 @@ std::optional<located<double>> map_reader::number(std::string_view key, number_r
     if (p == presence::required) require(key);
     return std::nullopt;
   }
-  const YAML::Node& v = *value(key);
+  const yaml_node& v = *value(key);
   const source_mark at = value_mark(key);
   const std::string name = "'" + std::string(key) + "'";
-  if (!v.IsScalar()) {
+  if (!v.is_scalar()) {
     diag_.error(at, name + " must be a number, got " + describe(v));
     return std::nullopt;
   }
-  const auto parsed = parse_decimal(v.Scalar());
+  const auto parsed = parse_decimal(v.scalar());
   if (!parsed) {
-    diag_.error(at, name + " must be a number, got '" + text_excerpt(v.Scalar(), 60) + "'");
+    diag_.error(at, name + " must be a number, got '" + text_excerpt(v.scalar(), 60) + "'");
     return std::nullopt;
   }
   if (rule == number_rule::non_negative && *parsed < 0.0) {
-    diag_.error(at, name + " must not be negative, got " + v.Scalar());
+    diag_.error(at, name + " must not be negative, got " + v.scalar());
     return std::nullopt;
   }
   if (rule == number_rule::positive && *parsed <= 0.0) {
-    diag_.error(at, name + " must be greater than 0, got " + v.Scalar());
+    diag_.error(at, name + " must be greater than 0, got " + v.scalar());
     return std::nullopt;
   }
   return located<double>{*parsed, at};
@@ -208,26 +201,26 @@ bool map_reader::number_into(std::string_view key, number_rule rule, double& tar
   return true;
 }
 
-std::optional<std::string> scalar_text(const YAML::Node& node, std::string_view what, source_mark at,
+std::optional<std::string> scalar_text(const yaml_node& node, std::string_view what, source_mark at,
                                        diagnostics& diag) {
-  if (node.IsNull()) {
+  if (node.is_null()) {
     diag.error(at, std::string(what) + " must not be empty");
     return std::nullopt;
   }
-  if (!node.IsScalar()) {
+  if (!node.is_scalar()) {
     diag.error(at, std::string(what) + " must be text, got " + describe(node));
     return std::nullopt;
   }
-  if (const std::string problem = text_value_problem(node.Scalar()); !problem.empty()) {
+  if (const std::string problem = text_value_problem(node.scalar()); !problem.empty()) {
     diag.error(at, std::string(what) + " " + problem);
     return std::nullopt;
   }
-  return node.Scalar();
+  return node.scalar();
 }
 
-bool expect_map(const YAML::Node& node, std::string_view name, std::string_view shape_hint, source_mark at,
+bool expect_map(const yaml_node& node, std::string_view name, std::string_view shape_hint, source_mark at,
                 diagnostics& diag) {
-  if (node.IsMap()) return true;
+  if (node.is_map()) return true;
   diag.error(at, "'" + std::string(name) + "' must be a map" + std::string(shape_hint) + ", got " + describe(node));
   return false;
 }

@@ -1,22 +1,21 @@
 #pragma once
-// Reading yaml-cpp nodes with located errors. Private to the config adapter: yaml-cpp
-// never appears in a public header.
-#include <yaml-cpp/yaml.h>
-
+// Reading the config's YAML nodes (yaml_document.h) with located errors. Private to the
+// config adapter: yaml-cpp never appears in a public header.
 #include <optional>
 #include <string>
 #include <string_view>
 #include <vector>
 
 #include "diagnostics.h"
+#include "yaml_document.h"
 
 namespace dewmargin::config_detail {
 
 // 1-based place of a node; {0, 0} for a node that has none.
-[[nodiscard]] source_mark mark_of(const YAML::Node& node);
+[[nodiscard]] source_mark mark_of(const yaml_node& node);
 
 // "a map", "a list", "nothing" or the scalar in quotes: for "got ..." in messages.
-[[nodiscard]] std::string describe(const YAML::Node& node);
+[[nodiscard]] std::string describe(const yaml_node& node);
 
 // Shortest text of a number for messages: 2, 0.3, 15.5.
 [[nodiscard]] std::string format_number(double value);
@@ -38,7 +37,7 @@ class map_reader {
  public:
   // `context` names the map in messages ("defaults", "zone 'level2-east'"); empty
   // means the top level. `node` must already be known to be a map.
-  map_reader(const YAML::Node& node, std::string context, const std::vector<std::string>& keys, diagnostics& diag);
+  map_reader(const yaml_node& node, std::string context, const std::vector<std::string>& keys, diagnostics& diag);
 
   [[nodiscard]] const std::string& context() const { return context_; }
   [[nodiscard]] source_mark mark() const { return mark_; }
@@ -46,7 +45,7 @@ class map_reader {
 
   [[nodiscard]] bool has(std::string_view key) const { return find(key) != nullptr; }
   // The value of `key` (first occurrence), or nullptr.
-  [[nodiscard]] const YAML::Node* value(std::string_view key) const;
+  [[nodiscard]] const yaml_node* value(std::string_view key) const;
   [[nodiscard]] source_mark key_mark(std::string_view key) const;
   // Where the value stands; the key's place when the value is empty (yaml-cpp
   // places an empty value at the start of the next line).
@@ -67,8 +66,8 @@ class map_reader {
  private:
   struct entry {
     std::string key;
-    YAML::Node key_node;
-    YAML::Node value;
+    yaml_node key_node;
+    yaml_node value;
   };
   [[nodiscard]] const entry* find(std::string_view key) const;
   [[nodiscard]] std::string missing_prefix() const;
@@ -81,11 +80,11 @@ class map_reader {
 };
 
 // Scalar reads outside a map (list items). `what` names the value in messages.
-[[nodiscard]] std::optional<std::string> scalar_text(const YAML::Node& node, std::string_view what, source_mark at,
+[[nodiscard]] std::optional<std::string> scalar_text(const yaml_node& node, std::string_view what, source_mark at,
                                                      diagnostics& diag);
 
 // Is this node a map? If not, reports "'NAME' must be a map ..., got X" at `at`.
-bool expect_map(const YAML::Node& node, std::string_view name, std::string_view shape_hint, source_mark at,
+bool expect_map(const yaml_node& node, std::string_view name, std::string_view shape_hint, source_mark at,
                 diagnostics& diag);
 
 }  // namespace dewmargin::config_detail
