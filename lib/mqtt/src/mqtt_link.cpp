@@ -657,8 +657,8 @@ struct mqtt_link::impl {
       (void)box_.on_connection_lost();  // anything still in flight belongs to the old connection
       if (connection_number > 1) {
         // The broker may have restarted without persistence: give it every retained topic again.
-        for (const auto& [topic, message] : last_retained_) {
-          (void)box_.push(message);
+        for (const auto& [topic, copy] : last_retained_) {
+          (void)box_.push(outbound_message{topic, copy.payload, true, copy.cls});
           ++queued_again;
         }
       }
@@ -782,7 +782,11 @@ struct mqtt_link::impl {
 
   void queue_locked(outbound_message message) {
     if (message.retained) {
-      last_retained_[message.topic] = message;
+      retained_copy& copy = last_retained_[message.topic];
+      // A fresh string of the payload's own size: assigning into the old one would keep the
+      // capacity of its longest payload yet, up to twice that (one copy per zone state).
+      copy.payload = std::string(message.payload);
+      copy.cls = message.cls;
     }
     (void)box_.push(std::move(message));
   }
@@ -827,7 +831,13 @@ struct mqtt_link::impl {
   std::condition_variable changed_;        // outbox, connection or stop changed
   std::condition_variable handlers_idle_;  // handlers_active_ fell to 0
   outbox box_;
-  std::unordered_map<std::string, outbound_message> last_retained_;  // topic -> newest retained
+  // The newest retained message of each topic, republished after a reconnect (the broker may
+  // have lost it); the topic is the key only.
+  struct retained_copy {
+    std::string payload;
+    message_class cls = message_class::state;
+  };
+  std::unordered_map<std::string, retained_copy> last_retained_;
   // The state machine (see mqtt_link.h): where the link is in its life, and the session
   // on the current connection.
   link_phase phase_ = link_phase::created;
