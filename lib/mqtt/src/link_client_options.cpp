@@ -3,6 +3,7 @@
 #include <cmath>
 #include <utility>
 
+#include "dewmargin/broker_tls.h"
 #include "dewmargin/broker_uri.h"
 
 namespace dewmargin::detail {
@@ -32,18 +33,7 @@ namespace dewmargin::detail {
     c.set_password(password);
   }
   if (broker_transport_of(options.broker.uri) == broker_transport::tls) {
-    ::mqtt::ssl_options ssl;
-    if (options.broker.tls) {
-      const tls_config& t = *options.broker.tls;
-      if (!t.ca_file.empty()) ssl.set_trust_store(t.ca_file);
-      if (!t.cert_file.empty()) ssl.set_key_store(t.cert_file);
-      if (!t.key_file.empty()) ssl.set_private_key(t.key_file);
-    }
-    ssl.set_enable_server_cert_auth(true);  // the broker's chain must verify...
-    ssl.set_verify(true);                   // ...and its name must match the host in the URI
-    // No ssl.set_error_handler(): connect() copies the options and the C library keeps a
-    // pointer into that copy, which is gone when the handler runs (found by ASan).
-    c.set_ssl(std::move(ssl));
+    c.set_ssl(broker_ssl_options(options.broker.tls.value_or(tls_config{})));
   }
   return c;
 }

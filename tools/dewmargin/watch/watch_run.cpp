@@ -17,6 +17,7 @@
 #include <thread>
 
 #include "../commands.h"
+#include "dewmargin/broker_tls.h"
 #include "dewmargin/broker_uri.h"
 #include "dewmargin/config_loader.h"
 #include "dewmargin/live_book.h"
@@ -44,7 +45,6 @@ constexpr int k_qos = 1;
 timestamp wall_now() {
   return std::chrono::time_point_cast<std::chrono::milliseconds>(std::chrono::system_clock::now());
 }
-
 
 struct connection_settings {
   std::string uri;
@@ -112,15 +112,8 @@ mqtt::connect_options connect_options_for(const connection_settings& s) {
   c.set_automatic_reconnect(1, 8);
   if (!s.username.empty()) c.set_user_name(s.username);
   if (!s.password.empty()) c.set_password(s.password);
-  if (broker_transport_of(s.uri) == broker_transport::tls) {
-    mqtt::ssl_options ssl;
-    if (!s.ca_file.empty()) ssl.set_trust_store(s.ca_file);
-    if (!s.cert_file.empty()) ssl.set_key_store(s.cert_file);
-    if (!s.key_file.empty()) ssl.set_private_key(s.key_file);
-    ssl.set_enable_server_cert_auth(true);
-    ssl.set_verify(true);
-    c.set_ssl(std::move(ssl));
-  }
+  if (broker_transport_of(s.uri) == broker_transport::tls)
+    c.set_ssl(broker_ssl_options({s.ca_file, s.cert_file, s.key_file}));
   return c;
 }
 
