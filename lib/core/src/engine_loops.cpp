@@ -19,9 +19,9 @@ setpoint_limit event_limit(setpoint_limit l) { return l == setpoint_limit::rate 
 
 }  // namespace
 
-std::vector<zone_demand> engine::state::demands_of(const loop_rt& l) const {
-  std::vector<zone_demand> demands;
-  demands.reserve(l.zones.size());
+const std::vector<zone_demand>& engine::state::demands_of(const loop_rt& l) {
+  std::vector<zone_demand>& demands = scratch_demands;
+  demands.clear();
   for (std::size_t zi : l.zones) {
     const zone_rt& z = zones[zi];
     demands.push_back({&z.cfg->id, z.counts_for_reset(), z.margin.dew_point_c});

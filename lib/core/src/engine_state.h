@@ -155,7 +155,9 @@ struct engine::state {
   void publish_valve(const zone_rt& z, valve_position p, engine_output& out) const;
 
   // engine_loops.cpp
-  std::vector<zone_demand> demands_of(const loop_rt& l) const;
+  // Fills the engine's one scratch vector (every loop, every tick: no allocation each time).
+  const std::vector<zone_demand>& demands_of(const loop_rt& l);
+  std::vector<zone_demand> scratch_demands;
   void tick_loops(timestamp now, engine_output& out);
   void loop_outputs(loop_rt& l, timestamp now, engine_output& out);
   void publish_loop(loop_rt& l, timestamp now, engine_output& out, bool force);

@@ -1,6 +1,7 @@
 // Zone evaluation, in three steps: the margin from the zone's inputs (zone_margin.h), then
 // the band and alarm, then the valve (zone_steps.h); and the zone's published state.
 #include <algorithm>
+#include <string_view>
 
 #include "dewmargin/psychro.h"
 #include "engine_state.h"
@@ -8,8 +9,11 @@
 namespace dewmargin {
 namespace {
 
+// fresh_value() and faulted() in one look at the reading's age (every input, every tick).
 margin_input margin_input_of(const input_slot& s, timestamp now) {
-  return {s.fresh_value(now), s.value, s.faulted(now), input_status_name(s.status)};
+  const bool fresh = s.fresh(now);
+  return {fresh ? s.value : std::nullopt, s.value, !fresh && s.status != input_status::awaiting,
+          input_status_name(s.status)};
 }
 
 // The room air's relative humidity at the coldest measured surface (EN ISO 13788's mould
@@ -174,7 +178,7 @@ void engine::state::publish_zone(zone_rt& z, timestamp now, engine_output& out, 
                                       m.supply_c,    m.margin_k,   minutes};
   const change_gate<7>::values inputs_only{m.dew_point_c, m.air_temp_c, m.rh_pct,           m.surface_min_c,
                                            m.supply_c,    m.margin_k,   z.published_minutes};
-  const std::string source = m.margin_source ? m.margin_source : "";
+  const std::string_view source = m.margin_source ? std::string_view(m.margin_source) : std::string_view();
   const bool news = source != z.published_source || z.gate.presence_changed(inputs_only);
   if (!z.gate.should_publish(significant || news, values, now, cfg.publish.min_interval_s)) return;
   const zone_state_view v{cfg.site,
