@@ -38,23 +38,27 @@ struct input_owner {
   bool is_dehumidifier = false;
 };
 
-struct input_slot {
+// What the tick reads of every input every second (kind, status, switch state, age and value)
+// comes first, within the slot's first 64 bytes, and slots start on a cache line: one line
+// a slot per pass, not three (at 10,000 zones the tick is bound by memory, not arithmetic).
+// 192 bytes a slot (208 before).
+struct alignas(64) input_slot {
   input_kind kind = input_kind::air_temp;
-  const input_config* cfg = nullptr;
-  input_owner owner;
+  input_status status = input_status::awaiting;
+  bool active = false;                    // switches: last good state
+  unsigned faults_reported = 0;           // while bad: the kinds already reported (a bit each)
   double stale_after_s = 0.0;             // 0: never stale
   double grace_s = 0.0;                   // after start, how long its zone waits for its first reading
   std::optional<double> value;            // last good value, core units
-  bool active = false;                    // switches: last good state
-  std::string last_switch_payload;        // switches: the payload of that state (decoded again
-                                          // when a reload changes the active/inactive words)
   std::optional<timestamp> last_reading;  // last good reading
   std::optional<timestamp> last_message;  // last payload of any kind
-  input_status status = input_status::awaiting;
+  const input_config* cfg = nullptr;
+  input_owner owner;
+  std::string last_switch_payload;   // switches: the payload of that state (decoded again
+                                     // when a reload changes the active/inactive words)
   std::optional<input_fault> fault;  // while bad: the kind of fault last reported
   std::string bad_reason;            // while bad: the reason of the first message of that kind
   std::uint64_t bad_messages = 0;    // bad messages since the input last turned bad
-  unsigned faults_reported = 0;      // while bad: the kinds already reported (a bit each)
 
   [[nodiscard]] bool fresh(timestamp now) const;
   // Not fresh, and not merely waiting for its first reading.
