@@ -5,19 +5,22 @@ namespace dewmargin {
 reset_demand loop_demand(const std::vector<zone_demand>& zones) {
   reset_demand d;
   d.no_counted_zone = true;
+  // Every loop on every tick: the governing zone's id is copied once, not at each new maximum.
+  const std::string* governing = nullptr;
   for (const zone_demand& z : zones) {
     if (!z.counted) continue;
     d.no_counted_zone = false;
     if (!z.dew_point_c) {
       d.dew_point_unknown = true;
-      d.governing_zone = *z.zone;
+      governing = z.zone;
       break;
     }
     if (!d.max_dew_point_c || *z.dew_point_c > *d.max_dew_point_c) {
       d.max_dew_point_c = z.dew_point_c;
-      d.governing_zone = *z.zone;
+      governing = z.zone;
     }
   }
+  if (governing) d.governing_zone = *governing;
   return d;
 }
 
