@@ -33,7 +33,7 @@ void margin_trend::rebase(std::int64_t t_ms) {
 }
 
 void margin_trend::add(timestamp t, double margin_k) {
-  memo_.reset();
+  memo_.valid = false;
   const std::int64_t t_ms = to_unix_ms(t);
   if (count_ == 0) base_ms_ = t_ms;
   if (t_ms < base_ms_) return;  // older than anything kept: out of order
@@ -57,9 +57,11 @@ void margin_trend::add(timestamp t, double margin_k) {
 
 std::optional<double> margin_trend::minutes_to_condensation(timestamp now) const {
   const std::int64_t now_ms = to_unix_ms(now);
-  if (memo_ && memo_->now_ms == now_ms) return memo_->minutes;
+  if (memo_.valid && memo_.now_ms == now_ms) {
+    return memo_.has_minutes ? std::optional<double>(memo_.minutes) : std::nullopt;
+  }
   const std::optional<double> minutes = fit_minutes(now_ms);
-  memo_ = memo{now_ms, minutes};
+  memo_ = {true, minutes.has_value(), now_ms, minutes.value_or(0.0)};
   return minutes;
 }
 

@@ -20,7 +20,7 @@ class margin_trend {
   void add(timestamp t, double margin_k);
   void clear() {
     count_ = 0;
-    memo_.reset();
+    memo_.valid = false;
   }
 
   // Minutes until the margin reaches zero at the current rate of fall; 0 when it is
@@ -45,11 +45,14 @@ class margin_trend {
   std::array<point, k_capacity> ring_{};
   // The last answer of minutes_to_condensation and its time: a zone's evaluation asks twice
   // (its valve, its state) for the same instant. add() and clear() forget it.
+  // Plain fields, not an optional of an optional: the query is on the tick's hot path.
   struct memo {
-    std::int64_t now_ms;
-    std::optional<double> minutes;
+    bool valid = false;
+    bool has_minutes = false;
+    std::int64_t now_ms = 0;
+    double minutes = 0.0;
   };
-  mutable std::optional<memo> memo_;
+  mutable memo memo_;
   std::size_t head_ = 0;  // index of the next write
   std::size_t count_ = 0;
 };
