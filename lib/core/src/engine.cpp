@@ -13,7 +13,10 @@ void engine::state::build() {
   cfg.loops.shrink_to_fit();
   cfg.dehumidifiers.shrink_to_fit();
   std::size_t slot_count = 3 * cfg.loops.size() + 2 * cfg.dehumidifiers.size();
-  for (const auto& zc : cfg.zones) slot_count += 3 + zc.humidity.size() + zc.surfaces.size();
+  for (const auto& zc : cfg.zones) {
+    slot_count += 1 + zc.humidity.size() + zc.surfaces.size() + (zc.condensation_switch ? 1 : 0) +
+                  (zc.window_contact ? 1 : 0);
+  }
   inputs.reserve(slot_count);
   cmd_prefix = cfg.publish.prefix + "/cmd/";
   std::unordered_map<std::string, std::size_t> loop_index;
