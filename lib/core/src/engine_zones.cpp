@@ -9,11 +9,8 @@
 namespace dewmargin {
 namespace {
 
-// fresh_value() and faulted() in one look at the reading's age (every input, every tick).
 margin_input margin_input_of(const input_slot& s, timestamp now) {
-  const bool fresh = s.fresh(now);
-  return {fresh ? s.value : std::nullopt, s.value, !fresh && s.status != input_status::awaiting,
-          input_status_name(s.status)};
+  return {s.fresh_value(now), s.value, s.faulted(now), input_status_name(s.status)};
 }
 
 // The room air's relative humidity at the coldest measured surface (EN ISO 13788's mould
