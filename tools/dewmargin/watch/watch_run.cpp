@@ -50,7 +50,7 @@ struct connection_settings {
   std::string uri;
   std::string username;
   std::string password;
-  std::string ca_file, cert_file, key_file;
+  tls_config tls;  // used with an ssl:// or mqtts:// uri
   int keepalive_s = 30;
   std::vector<std::string> prefixes;
 };
@@ -70,17 +70,13 @@ result<connection_settings> settings_from(const watch_options& o) {
     s.uri = cfg.broker.uri;
     s.username = cfg.broker.username;
     if (password_file.empty()) password_file = cfg.broker.password_file;
-    if (cfg.broker.tls) {
-      s.ca_file = cfg.broker.tls->ca_file;
-      s.cert_file = cfg.broker.tls->cert_file;
-      s.key_file = cfg.broker.tls->key_file;
-    }
+    if (cfg.broker.tls) s.tls = *cfg.broker.tls;
     s.keepalive_s = static_cast<int>(cfg.broker.keepalive_s);
     s.prefixes = {cfg.publish.prefix};
   }
   if (!o.broker.empty()) s.uri = o.broker;
   if (!o.username.empty()) s.username = o.username;
-  if (!o.ca_file.empty()) s.ca_file = o.ca_file;
+  if (!o.ca_file.empty()) s.tls.ca_file = o.ca_file;
   if (!o.prefixes.empty()) s.prefixes = o.prefixes;
   if (s.uri.empty())
     return make_error(error_code::invalid_argument, "give --config FILE, or --broker URI and --prefix P");
@@ -112,8 +108,7 @@ mqtt::connect_options connect_options_for(const connection_settings& s) {
   c.set_automatic_reconnect(1, 8);
   if (!s.username.empty()) c.set_user_name(s.username);
   if (!s.password.empty()) c.set_password(s.password);
-  if (broker_transport_of(s.uri) == broker_transport::tls)
-    c.set_ssl(broker_ssl_options({s.ca_file, s.cert_file, s.key_file}));
+  if (broker_transport_of(s.uri) == broker_transport::tls) c.set_ssl(broker_ssl_options(s.tls));
   return c;
 }
 
