@@ -729,7 +729,7 @@ TEST(ConfigDiagnostic, FormatsWithAndWithoutPlace) {
 }
 
 // A marker before the first document, and a marker line inside a block scalar, are not a
-// second document (the loader parses a second time only when a marker follows content).
+// second document (the loader reads on past the first document only when a marker follows content).
 TEST(ConfigLoader, ADocumentMarkerBeforeTheConfigIsNotASecondDocument) {
   const auto r = load_config_text("# site\n---\n" + k_head + k_loop + k_zone, "m.yaml");
   EXPECT_TRUE(r.ok()) << (r.errors.empty() ? "" : r.errors.front().to_string());

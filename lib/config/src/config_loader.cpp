@@ -16,15 +16,10 @@ namespace dewmargin {
 namespace {
 
 using config_detail::diagnostics;
-using config_detail::source_mark;
-
-source_mark mark_or_start(const YAML::Mark& m) {
-  if (m.is_null()) return {1, 1};
-  return {m.line + 1, m.column + 1};
-}
+using config_detail::mark_or_start;
 
 // A second document needs a marker line ("---" or "...") after the first document's content;
-// without one the second parse is skipped (it doubled the load time of a large site).
+// without one the parser does not read on past the first document.
 bool may_hold_a_second_document(std::string_view text) {
   bool content_seen = false;
   std::size_t start = 0;

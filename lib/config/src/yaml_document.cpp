@@ -1,13 +1,17 @@
 #include "yaml_document.h"
 
 #include <yaml-cpp/eventhandler.h>
-#include <yaml-cpp/mark.h>
 #include <yaml-cpp/parser.h>
 
 #include <sstream>
 #include <unordered_map>
 
 namespace dewmargin::config_detail {
+
+source_mark mark_or_start(const YAML::Mark& m) {
+  if (m.is_null()) return {1, 1};
+  return {m.line + 1, m.column + 1};
+}
 
 // Record 0 is the null root of an empty file, with no place.
 yaml_document::yaml_document() { records_.emplace_back(); }
@@ -151,12 +155,7 @@ class first_node_place : public YAML::EventHandler {
 
  private:
   void node(const YAML::Mark& mark) {
-    if (at) return;
-    if (mark.is_null()) {
-      at = source_mark{1, 1};
-    } else {
-      at = source_mark{mark.line + 1, mark.column + 1};
-    }
+    if (!at) at = mark_or_start(mark);
   }
 };
 

@@ -4,6 +4,8 @@
 // 110 MB and two thirds of the load time, against a tenth of both for the events alone.
 // Here each node is one record in a vector, and the readers hold plain handles.
 // Private to the config adapter; the tree must outlive every handle into it.
+#include <yaml-cpp/mark.h>
+
 #include <cstddef>
 #include <cstdint>
 #include <optional>
@@ -16,6 +18,10 @@
 namespace dewmargin::config_detail {
 
 enum class yaml_kind : std::uint8_t { null, scalar, sequence, map };
+
+// A parser's place (an error's, a document's start), 1-based; the start of the file when the
+// parser gives none.
+[[nodiscard]] source_mark mark_or_start(const YAML::Mark& m);
 
 class yaml_document;
 struct yaml_pair;
