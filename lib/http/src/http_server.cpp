@@ -3,6 +3,7 @@
 #include "dewmargin/http_server.h"
 
 #include <arpa/inet.h>
+#include <fcntl.h>
 #include <httplib.h>
 #include <netinet/in.h>
 #include <poll.h>
@@ -100,22 +101,63 @@ class bounded_socket_stream final : public httplib::Stream {
   std::size_t filled_ = 0;
 };
 
-// The accept loop hands each connection to this queue, which hands it straight to the
-// gate (through process_and_close_socket below): accepting never waits on a client.
-class inline_task_queue final : public httplib::TaskQueue {
- public:
-  void enqueue(std::function<void()> fn) override { fn(); }
-  void shutdown() override {}
-};
-
 class gated_server final : public httplib::Server {
  public:
   gated_server() = default;
-  void set_gate(http_detail::connection_gate* gate) { gate_ = gate; }
+  ~gated_server() override { close_listener(); }
+  gated_server(const gated_server&) = delete;
+  gated_server& operator=(const gated_server&) = delete;
+
   // httplib listens with a backlog of 5 (a compile-time constant of the library): a burst of
   // connections then loses SYNs and each lost one costs its client a second. Listening again
   // on the bound socket raises the backlog (Linux takes a second listen() as an update).
   bool widen_backlog(int backlog) { return ::listen(svr_sock_, backlog) == 0; }
+
+  // Our accept loop, not httplib's listen_after_bind(): that one ends for good on any
+  // accept() error but EMFILE, EINTR and EAGAIN (ENFILE, ENOBUFS, ENOMEM, EPROTO and the
+  // like), and the page and metrics would be gone while the service ran on. Here an error
+  // is waited out and accepting goes on until the wake pipe says stop. Each connection goes
+  // straight to the gate: accepting never waits on a client.
+  void accept_until_woken(http_detail::connection_gate& gate, int wake_fd, std::chrono::milliseconds io_timeout) {
+    const int listen_fd = svr_sock_;
+    const int flags = ::fcntl(listen_fd, F_GETFL);
+    if (flags >= 0) (void)::fcntl(listen_fd, F_SETFL, flags | O_NONBLOCK);  // poll said ready, but the peer may be gone
+    pollfd fds[2] = {{listen_fd, POLLIN, 0}, {wake_fd, POLLIN, 0}};
+    for (;;) {
+      fds[0].revents = fds[1].revents = 0;
+      if (::poll(fds, 2, -1) < 0) {
+        if (errno != EINTR) std::this_thread::sleep_for(k_accept_backoff);
+        continue;
+      }
+      if (fds[1].revents != 0) return;
+      if ((fds[0].revents & POLLIN) == 0) {
+        std::this_thread::sleep_for(k_accept_backoff);  // POLLERR or POLLNVAL: do not spin
+        continue;
+      }
+      const int fd = ::accept4(listen_fd, nullptr, nullptr, SOCK_CLOEXEC);
+      if (fd < 0) {
+        // Out of descriptors or buffers, the peer gone before accept: the connection waits in
+        // the backlog (or is lost to its client alone); try again shortly rather than spin.
+        if (errno != EAGAIN && errno != EWOULDBLOCK && errno != EINTR && errno != ECONNABORTED) {
+          std::this_thread::sleep_for(k_accept_backoff);
+        }
+        continue;
+      }
+      // A second bound beside the request deadline: a send into a client that reads nothing
+      // cannot block a worker past it.
+      const timeval tv{static_cast<time_t>(io_timeout.count() / 1000),
+                       static_cast<suseconds_t>((io_timeout.count() % 1000) * 1000)};
+      (void)::setsockopt(fd, SOL_SOCKET, SO_RCVTIMEO, &tv, sizeof tv);
+      (void)::setsockopt(fd, SOL_SOCKET, SO_SNDTIMEO, &tv, sizeof tv);
+      gate.admit(fd);
+    }
+  }
+
+  void close_listener() {
+    const int fd = svr_sock_.exchange(INVALID_SOCKET);
+    if (fd != INVALID_SOCKET) ::close(fd);
+  }
+
   // Serves one request on fd (a worker of the gate) and closes it.
   void serve(int fd, steady::time_point deadline, std::size_t max_bytes) noexcept {
     try {
@@ -134,17 +176,7 @@ class gated_server final : public httplib::Server {
   }
 
  private:
-  // Overrides httplib's (private virtual) per-connection entry point.
-  bool process_and_close_socket(socket_t sock) override {
-    if (gate_ == nullptr) {
-      ::close(sock);
-      return false;
-    }
-    gate_->admit(sock);
-    return true;
-  }
-
-  http_detail::connection_gate* gate_ = nullptr;
+  static constexpr std::chrono::milliseconds k_accept_backoff{20};
 };
 
 // Compares without an early exit, so the time taken does not tell how much was right.
@@ -184,10 +216,19 @@ struct http_server::impl {
   gated_server server;
   std::unique_ptr<http_detail::connection_gate> gate;
   std::thread listener;
+  int wake_pipe[2] = {-1, -1};  // a byte here ends the accept loop
   int port = 0;
   std::atomic<bool> stopped{false};
 
   impl(http_server_options o, const live_snapshot& s) : options(std::move(o)), snapshot(s) {}
+  ~impl() {
+    stop();
+    for (int fd : wake_pipe) {
+      if (fd >= 0) ::close(fd);
+    }
+  }
+  impl(const impl&) = delete;
+  impl& operator=(const impl&) = delete;
 
   // Without a token the server listens on loopback only, and answers only requests made to
   // a loopback name: a web page elsewhere that points its own host name at 127.0.0.1 (DNS
@@ -278,12 +319,12 @@ struct http_server::impl {
 
   void stop() {
     if (stopped.exchange(true)) return;
-    // stop() does nothing before the listener has started running: wait for it, briefly.
-    for (int i = 0; listener.joinable() && i < 1000 && !server.is_running(); ++i) {
-      std::this_thread::sleep_for(std::chrono::milliseconds(1));
+    if (listener.joinable()) {
+      const char c = 1;
+      (void)!::write(wake_pipe[1], &c, 1);
+      listener.join();
     }
-    server.stop();
-    if (listener.joinable()) listener.join();
+    server.close_listener();
     if (gate) gate->stop();
   }
 };
@@ -291,9 +332,10 @@ struct http_server::impl {
 result<std::unique_ptr<http_server>> http_server::start(http_server_options options, const live_snapshot& snapshot) {
   auto state = std::make_unique<impl>(std::move(options), snapshot);
   impl& s = *state;
-  s.server.new_task_queue = [] { return new inline_task_queue; };
+  if (::pipe2(s.wake_pipe, O_CLOEXEC) != 0) {
+    return make_error(error_code::invalid_argument, std::string("http server: cannot make its wake pipe: ") + std::strerror(errno));
+  }
   s.server.set_payload_max_length(s.options.max_request_bytes);
-  s.server.set_idle_interval(std::chrono::milliseconds(0));
   s.routes();
   const std::string where = s.options.host + ":" + std::to_string(s.options.port);
   if (s.options.port == 0) {
@@ -312,8 +354,7 @@ result<std::unique_ptr<http_server>> http_server::start(http_server_options opti
   s.gate = std::make_unique<http_detail::connection_gate>(
       s.options.workers, s.options.max_waiting, s.options.idle_timeout,
       [&s, timeout, max_bytes](int fd) { s.server.serve(fd, steady::now() + timeout, max_bytes); });
-  s.server.set_gate(s.gate.get());
-  s.listener = std::thread([&s] { s.server.listen_after_bind(); });
+  s.listener = std::thread([&s, timeout] { s.server.accept_until_woken(*s.gate, s.wake_pipe[0], timeout); });
   return std::unique_ptr<http_server>(new http_server(std::move(state)));
 }
 
