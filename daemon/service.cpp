@@ -231,9 +231,21 @@ class service {
     store_seen_ = now;
   }
 
-  // Once a second: drops counted for the summary line; the line once a minute.
-  void watch_drops(std::chrono::steady_clock::time_point now) {
+  // Once a second: after a reconnect, the retained messages again; drops counted for the
+  // summary line; the line once a minute.
+  void watch_link(std::chrono::steady_clock::time_point now) {
     const mqtt_link_stats st = link_->stats();
+    // A new connection after the first: the broker may have restarted without persistence and
+    // lost every retained state and command, and the link keeps no copies. The engine
+    // publishes them again as they stand now (at most a second after the connect; the sender
+    // holds everything until the subscription is back anyway).
+    if (started_ && st.connections > std::max<std::uint64_t>(link_seen_.connections, 1)) {
+      core_->republish(service_now(), batch_);
+      const std::size_t count = batch_.messages.size();
+      dispatch();
+      log_->info("reconnected (connection {}): {} retained states and commands published again, in case the broker lost them",
+                 st.connections, count);
+    }
     std::uint64_t outbox = 0;
     for (const auto d : st.dropped_outbox) outbox += d;
     log_budget_.count("inbound messages dropped (queue full)", st.dropped_inbound - link_seen_.dropped_inbound);
@@ -362,7 +374,7 @@ class service {
         if (after - next_tick > std::chrono::seconds(5)) next_tick = after + k_tick;
         if (!store_ && after >= next_store_retry_) open_store();
         watch_store();
-        watch_drops(after);
+        watch_link(after);
         trim_heap_if_due(after);
       }
       if (!announced_ready && link_->ready()) {

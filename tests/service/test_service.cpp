@@ -81,6 +81,43 @@ TEST_F(Service, PublishesRetainedZoneAndLoopStateAndTheBareSetpoint) {
       "dm/loop/loop-1/state", [](const received_message& m) { return m.retained; }, 10s));
 }
 
+// A broker restarted without persistence has forgotten every retained message: after it
+// reconnects, the service publishes its states and plant commands again, as they stand now.
+TEST_F(Service, RepublishesStatesAndCommandsAfterTheBrokerLostThem) {
+  start_service();
+  publish_readings(17.5);
+  ASSERT_TRUE(wait_zone_state("room-a", "safe"));
+  ASSERT_TRUE(watcher_->wait_for_payload("r/a/valve", "open", 10s));
+  ASSERT_TRUE(watcher_->wait_for("plant/l1/sp", [](const received_message&) { return true; }, 10s));
+
+  broker_.stop();
+  broker_.start();
+  {
+    mqtt_test_client empty(broker_.uri(), {"dm/zone/#"});
+    EXPECT_FALSE(empty.wait_for("dm/zone/room-a/state", [](const received_message&) { return true; }, 300ms))
+        << "the broker really forgot";
+  }
+  const auto until = std::chrono::steady_clock::now() + 30s;
+  const auto retained = [&](const std::string& topic, const std::string& payload) {
+    // A new subscriber each try: a retained message is what a subscription gets at once.
+    do {
+      mqtt_test_client probe(broker_.uri(), {topic});
+      const auto m = probe.wait_for(topic, [](const received_message& r) { return r.retained; }, 1s);
+      if (m && (payload.empty() || m->payload == payload)) return true;
+    } while (std::chrono::steady_clock::now() < until);
+    return false;
+  };
+  EXPECT_TRUE(retained("r/a/valve", "open"));
+  EXPECT_TRUE(retained("plant/l1/sp", ""));  // the setpoint as it stands then (it ramps meanwhile)
+  EXPECT_TRUE(retained("dm/loop/loop-1/state", ""));
+  ASSERT_TRUE(retained("dm/zone/room-a/state", ""));
+  mqtt_test_client reader(broker_.uri(), {"dm/zone/room-a/state"});
+  const auto zone = reader.wait_for("dm/zone/room-a/state", [](const received_message& r) { return r.retained; }, 5s);
+  ASSERT_TRUE(zone);
+  EXPECT_EQ(as_json(*zone)["band"], "safe");
+  EXPECT_NE(service_->log_text().find("retained states and commands published again"), std::string::npos);
+}
+
 TEST_F(Service, CondensingReadingClosesTheValveAndRaisesABandEventWithinOneSecond) {
   start_service();
   publish_readings(17.5);

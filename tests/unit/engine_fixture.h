@@ -108,6 +108,11 @@ class engine_driver {
     collect();
   }
   void send(const std::string& topic, const std::string& payload) { at(0, topic, payload); }
+  // What the service does after a reconnect (the broker may have lost its retained messages).
+  void republish() {
+    engine_->republish(now_, out_);
+    collect();
+  }
   void advance(double seconds) {
     const timestamp until = now_ + std::chrono::milliseconds(static_cast<std::int64_t>(seconds * 1000.0));
     ticks_.advance_to(until, [this](timestamp at) {

@@ -141,6 +141,8 @@ void engine::adopt(const engine& previous, timestamp now, engine_output& out) {
   s_->publish_all(s_->advance(now), out);
 }
 
+void engine::republish(timestamp now, engine_output& out) { s_->republish(s_->advance(now), out); }
+
 void engine::on_message(const std::string& topic, std::string_view payload, timestamp now, engine_output& out,
                         bool retained) {
   ++s_->counters.messages;

@@ -186,6 +186,7 @@ struct engine::state {
   void restore_setpoint(const std::string& loop, double setpoint_c);
   void adopt(const state& previous);
   void publish_all(timestamp now, engine_output& out);
+  void republish(timestamp now, engine_output& out);
   void flush(timestamp now, engine_output& out);
 };
 

@@ -10,6 +10,7 @@
 // to snapshot_of()/restore() as well when it must survive a restart.
 #include <algorithm>
 
+#include "dewmargin/message_json.h"
 #include "engine_state.h"
 
 namespace dewmargin {
@@ -139,6 +140,20 @@ void engine::state::publish_all(timestamp now, engine_output& out) {
     if (z.valve && z.valve->position() != valve_position::unset) publish_valve(z, z.valve->position(), out);
   }
   for (loop_rt& l : loops) publish_loop(l, now, out, true);
+}
+
+// After a reconnect: what the plant was told is told again (the setpoint and request would
+// otherwise go out only when they move), with every state as it stands now.
+void engine::state::republish(timestamp now, engine_output& out) {
+  for (loop_rt& l : loops) l.published_bare.clear();  // publish_loop() then sends the setpoint
+  publish_all(now, out);
+  for (dehumidifier_rt& d : dehumidifiers) {
+    if (d.published_request_c) {
+      out.messages.push_back({d.cfg->dew_point_request.topic, format_bare_number(*d.published_request_c), true,
+                              message_class::command});
+    }
+    publish_dehumidifier(d, now, out, true);
+  }
 }
 
 // Shutdown: the current minute's samples and the state to restore next time.

@@ -8,7 +8,6 @@
 #include <exception>
 #include <mutex>
 #include <thread>
-#include <unordered_map>
 #include <utility>
 
 #include "dewmargin/broker_uri.h"
@@ -646,7 +645,6 @@ struct mqtt_link::impl {
     }
     std::uint64_t epoch = 0;
     std::uint64_t connection_number = 0;
-    std::size_t queued_again = 0;
     {
       std::lock_guard<std::mutex> lock(mutex_);
       session_ = session_phase::subscribing;
@@ -655,20 +653,11 @@ struct mqtt_link::impl {
       epoch = ++epoch_;
       connection_number = ++connections_;
       (void)box_.on_connection_lost();  // anything still in flight belongs to the old connection
-      if (connection_number > 1) {
-        // The broker may have restarted without persistence: give it every retained topic again.
-        for (const auto& [topic, copy] : last_retained_) {
-          (void)box_.push(outbound_message{topic, copy.payload, true, copy.cls});
-          ++queued_again;
-        }
-      }
     }
     changed_.notify_all();
     report(link_report_level::info,
            "connected to " + options_.broker.uri + " as " + options_.broker.client_id +
-               (connection_number > 1 ? " (reconnect " + std::to_string(connection_number - 1) + ", " +
-                                            std::to_string(queued_again) + " retained message(s) queued again)"
-                                      : std::string{}));
+               (connection_number > 1 ? " (reconnect " + std::to_string(connection_number - 1) + ")" : std::string{}));
     if (options_.subscriptions.empty()) {
       finish_session(epoch);
       return;
@@ -780,16 +769,7 @@ struct mqtt_link::impl {
 
   // ---- helpers ------------------------------------------------------------------------
 
-  void queue_locked(outbound_message message) {
-    if (message.retained) {
-      retained_copy& copy = last_retained_[message.topic];
-      // A fresh string of the payload's own size: assigning into the old one would keep the
-      // capacity of its longest payload yet, up to twice that (one copy per zone state).
-      copy.payload = std::string(message.payload);
-      copy.cls = message.cls;
-    }
-    (void)box_.push(std::move(message));
-  }
+  void queue_locked(outbound_message message) { (void)box_.push(std::move(message)); }
 
   void report_outbox_drops() {
     std::uint64_t dropped = 0;
@@ -831,13 +811,6 @@ struct mqtt_link::impl {
   std::condition_variable changed_;        // outbox, connection or stop changed
   std::condition_variable handlers_idle_;  // handlers_active_ fell to 0
   outbox box_;
-  // The newest retained message of each topic, republished after a reconnect (the broker may
-  // have lost it); the topic is the key only.
-  struct retained_copy {
-    std::string payload;
-    message_class cls = message_class::state;
-  };
-  std::unordered_map<std::string, retained_copy> last_retained_;
   // The state machine (see mqtt_link.h): where the link is in its life, and the session
   // on the current connection.
   link_phase phase_ = link_phase::created;

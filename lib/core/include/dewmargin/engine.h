@@ -64,6 +64,11 @@ class engine {
   // minute's samples and setpoints (by id). Call instead of begin().
   void adopt(const engine& previous, timestamp now, engine_output& out);
 
+  // The broker may have lost its retained messages (restarted without persistence): every
+  // retained state and plant command again, as it stands now (zone, loop and unit states;
+  // valve, setpoint and dew-point request commands). The shell calls it after each reconnect.
+  void republish(timestamp now, engine_output& out);
+
   // Exact topics of every input, plus <prefix>/cmd/#.
   [[nodiscard]] std::vector<std::string> subscriptions() const;
   // True when some input reads `topic` (a reading, not a command).

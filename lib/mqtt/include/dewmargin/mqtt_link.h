@@ -11,9 +11,10 @@
 // - Outbound: publish() never blocks. Messages wait in an outbox (dewmargin/outbox.h) until
 //   their QoS 1 delivery completes (states and commands coalesced by topic, events and alarm
 //   events bounded by outbox_capacity); on connection loss the ones in flight are sent again
-//   (at least once: a subscriber may see a duplicate). The last retained message of each
-//   topic is kept and republished after every reconnect, since a broker restarted without
-//   persistence has forgotten it.
+//   (at least once: a subscriber may see a duplicate). The link keeps no copy of what it
+//   delivered: a broker restarted without persistence has forgotten the retained messages,
+//   and the caller, seeing stats().connections rise past 1, publishes them again from its
+//   own state (the service: engine::republish), current rather than as last sent.
 // - Inbound: a bounded queue (dewmargin/inbound_queue.h); overflow is counted, command
 //   topics (must_keep_prefixes) are never dropped.
 // - Connect: start() returns at once. Every connect is retried with bounded back-off

@@ -1,0 +1,94 @@
+// engine::republish, what the service calls after a reconnect (the broker may have restarted
+// without persistence and forgotten every retained message): each retained topic the engine
+// has published goes out again, commands with what the plant was last told, states as they
+// stand now.
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <map>
+#include <set>
+#include <string>
+
+#include "engine_fixture.h"
+
+namespace dewmargin {
+namespace {
+
+using testing_support::engine_driver;
+using testing_support::published;
+using testing_support::small_site;
+
+// Relative humidity (%) of air at `air_c` whose dew point is `dew_point_c`: the Magnus
+// formula with Sonntag's coefficients as given in WMO-No. 8 (17.62, 243.12 °C), inverted.
+double rh_for(double air_c, double dew_point_c) {
+  const double a = 17.62, b = 243.12;
+  return 100.0 * std::exp(a * dew_point_c / (b + dew_point_c) - a * air_c / (b + air_c));
+}
+
+std::map<std::string, published> last_retained(const std::vector<published>& log) {
+  std::map<std::string, published> last;
+  for (const auto& p : log) {
+    if (p.retained) last.insert_or_assign(p.topic, p);
+  }
+  return last;
+}
+
+TEST(EngineRepublish, EveryRetainedTopicGoesOutAgainWithTheLastCommands) {
+  site_config cfg = small_site();
+  // A unit with an input of its own publishes a state too.
+  cfg.dehumidifiers[0].fault = testing_support::topic_input("plant/doas/fault");
+  engine_driver d(cfg);
+  // z1 tight (dew point 15.5 °C, surface 17 °C): the water is reset, the unit asked for drier
+  // air, the valves opened (supply 17 °C).
+  for (int i = 0; i < 60; ++i) {
+    d.readings(24, rh_for(24, 15.5), 17, 17);
+    d.advance(10);
+  }
+  d.send("plant/doas/fault", "0");
+  d.advance(2);
+  const auto before = last_retained(d.log());
+  for (const char* topic : {"dm/zone/z1/state", "dm/zone/z2/state", "dm/loop/loop-a/state", "b/z1/valve",
+                            "b/z2/valve", "plant/a/sp", "plant/doas/dp", "dm/dehumidifier/doas-1/state"}) {
+    ASSERT_EQ(before.count(topic), 1u) << topic << " was never published: the test would prove nothing";
+  }
+
+  d.clear_log();
+  d.republish();
+  const auto again = last_retained(d.log());
+  std::set<std::string> before_topics, again_topics;
+  for (const auto& [t, p] : before) before_topics.insert(t);
+  for (const auto& [t, p] : again) again_topics.insert(t);
+  EXPECT_EQ(again_topics, before_topics);
+  for (const auto& [topic, p] : again) {
+    if (p.cls == message_class::command) {
+      EXPECT_EQ(p.payload, before.at(topic).payload) << topic;
+    } else {
+      EXPECT_EQ(p.cls, message_class::state) << topic;
+      const auto now_json = p.json();
+      const auto then = before.at(topic).json();
+      ASSERT_TRUE(now_json.is_object()) << topic;
+      for (const char* key : {"band", "margin_k", "valve", "setpoint_c", "fault"}) {
+        EXPECT_EQ(now_json.value(key, nlohmann::json()), then.value(key, nlohmann::json())) << topic << " " << key;
+      }
+    }
+  }
+  // Nothing but retained messages: no event is made up by a reconnect.
+  for (const auto& p : d.log()) EXPECT_TRUE(p.retained) << p.topic << " " << p.payload;
+  EXPECT_EQ(d.last_json("dm/zone/z1/state")["band"], "tight");
+}
+
+TEST(EngineRepublish, ARepublishRightAfterTheStartSendsTheStartingStates) {
+  engine_driver d(small_site());
+  const auto at_start = last_retained(d.log());
+  d.clear_log();
+  d.republish();
+  const auto again = last_retained(d.log());
+  ASSERT_FALSE(again.empty());
+  for (const auto& [topic, p] : at_start) {
+    ASSERT_EQ(again.count(topic), 1u) << topic;
+    EXPECT_EQ(again.at(topic).payload, p.payload) << topic;  // same instant, same state
+  }
+}
+
+}  // namespace
+}  // namespace dewmargin
