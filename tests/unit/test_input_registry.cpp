@@ -251,10 +251,19 @@ TEST(InputRegistry, TopicsAreSortedAndUnique) {
   (void)reg.add(input_kind::air_temp, a, {false, 0}, 180);
   (void)reg.add(input_kind::humidity, b, {false, 0}, 180);
   (void)reg.add(input_kind::supply_temp, c, {true, 0}, 180);
+  input_config d = topic("b/env");  // a third field of b/env, added after another topic
+  d.field = "/surface";
+  (void)reg.add(input_kind::surface, d, {false, 1}, 180);
   EXPECT_EQ(reg.topics(), (std::vector<std::string>{"a/supply", "b/env"}));
-  ASSERT_NE(reg.slots_for("b/env"), nullptr);
-  EXPECT_EQ(reg.slots_for("b/env")->size(), 2u);
-  EXPECT_EQ(reg.slots_for("nowhere"), nullptr);
+  std::vector<std::size_t> ids{99};
+  ASSERT_TRUE(reg.slots_for("b/env", ids));
+  EXPECT_EQ(ids, (std::vector<std::size_t>{0, 1, 3}));  // in the order they were added
+  ASSERT_TRUE(reg.slots_for("a/supply", ids));
+  EXPECT_EQ(ids, (std::vector<std::size_t>{2}));
+  EXPECT_TRUE(reg.reads("b/env"));
+  EXPECT_FALSE(reg.slots_for("nowhere", ids));
+  EXPECT_TRUE(ids.empty());
+  EXPECT_FALSE(reg.reads("nowhere"));
 }
 
 }  // namespace

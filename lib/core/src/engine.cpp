@@ -96,23 +96,23 @@ void engine::state::route(const std::string& topic, std::string_view payload, ti
     on_command(topic, payload, now, out);
     return;
   }
-  const std::vector<std::size_t>* ids = inputs.slots_for(topic);
-  if (!ids) {
+  std::vector<std::size_t>& ids = route_ids;  // reused: no allocation per message
+  if (!inputs.slots_for(topic, ids)) {
     ++counters.unrouted;
     return;
   }
   if (!retained) {
-    on_reading(*ids, payload, reading_ts, now, out);
+    on_reading(ids, payload, reading_ts, now, out);
     return;
   }
   // A retained switch state is the device's last word only until the service has heard from the
   // input: the broker re-sends retained messages at every resubscription (each reconnect), and an
   // old retained "dry" must never override a live "wet" heard since.
   std::vector<std::size_t> switches;
-  for (std::size_t id : *ids) {
+  for (std::size_t id : ids) {
     if (is_switch_kind(inputs[id].kind) && !inputs[id].last_message) switches.push_back(id);
   }
-  if (switches.size() != ids->size()) ++counters.retained_ignored;
+  if (switches.size() != ids.size()) ++counters.retained_ignored;
   if (!switches.empty()) on_reading(switches, payload, reading_ts, now, out);
 }
 
@@ -154,7 +154,7 @@ void engine::tick(timestamp now, engine_output& out) { s_->tick(s_->advance(now)
 
 void engine::flush(timestamp now, engine_output& out) { s_->flush(s_->advance(now), out); }
 
-bool engine::reads(const std::string& topic) const { return s_->inputs.slots_for(topic) != nullptr; }
+bool engine::reads(const std::string& topic) const { return s_->inputs.reads(topic); }
 
 std::vector<std::string> engine::subscriptions() const {
   std::vector<std::string> topics = s_->inputs.topics();

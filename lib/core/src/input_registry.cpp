@@ -91,13 +91,24 @@ std::size_t input_registry::add(input_kind kind, const input_config& cfg, input_
                                     : (default_stale_s > 0.0 ? default_stale_s : band_thresholds{}.stale_after_s);
   slots_.push_back(std::move(s));
   const std::size_t id = slots_.size() - 1;
-  by_topic_[cfg.topic].push_back(id);
+  const auto id32 = static_cast<std::uint32_t>(id);
+  next_on_topic_.push_back(k_no_next);
+  const auto [it, first] = by_topic_.try_emplace(std::string_view(cfg.topic), topic_chain{id32, id32});
+  if (!first) {
+    next_on_topic_[it->second.last] = id32;
+    it->second.last = id32;
+  }
   return id;
 }
 
-const std::vector<std::size_t>* input_registry::slots_for(const std::string& topic) const {
+bool input_registry::slots_for(std::string_view topic, std::vector<std::size_t>& ids) const {
+  ids.clear();
   const auto it = by_topic_.find(topic);
-  return it == by_topic_.end() ? nullptr : &it->second;
+  if (it == by_topic_.end()) return false;
+  for (std::uint32_t id = it->second.first; id != k_no_next; id = next_on_topic_[id]) {
+    ids.push_back(id);
+  }
+  return true;
 }
 
 bool input_registry::apply(std::size_t id, std::string_view payload, timestamp reading_ts, timestamp now,
@@ -183,10 +194,10 @@ void input_registry::check_staleness(timestamp start, timestamp now, std::vector
 }
 
 void input_registry::adopt(const input_registry& previous) {
+  std::vector<std::size_t> old_ids;
   for (input_slot& s : slots_) {
-    const auto* old_ids = previous.slots_for(s.cfg->topic);
-    if (!old_ids) continue;
-    for (std::size_t id : *old_ids) {
+    if (!previous.slots_for(s.cfg->topic, old_ids)) continue;
+    for (std::size_t id : old_ids) {
       const input_slot& old = previous.slots_[id];
       if (old.cfg->field != s.cfg->field || is_switch_kind(old.kind) != is_switch_kind(s.kind)) continue;
       s.value = old.value;
@@ -219,7 +230,7 @@ void input_registry::adopt(const input_registry& previous) {
 std::vector<std::string> input_registry::topics() const {
   std::vector<std::string> topics;
   topics.reserve(by_topic_.size());
-  for (const auto& kv : by_topic_) topics.push_back(kv.first);
+  for (const auto& kv : by_topic_) topics.emplace_back(kv.first);
   std::sort(topics.begin(), topics.end());
   return topics;
 }
