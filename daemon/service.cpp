@@ -38,6 +38,9 @@ constexpr auto k_http_retry = std::chrono::seconds(60);      // the web server, 
 constexpr auto k_max_wait = std::chrono::milliseconds(200);  // signal and watchdog latency
 constexpr std::size_t k_burst = 256;
 constexpr std::size_t k_max_early_messages = 1000;
+// Entries an output batch keeps room for between passes; a burst's room (the start, a
+// reconnect, a reload: a state per zone and more, 1.2 MB at 10,000 zones) is given back.
+constexpr std::size_t k_batch_room_kept = 1024;
 // Opening the history database again after a failure: soon at first (a lock or a full disk
 // clears quickly), then less often.
 constexpr auto k_store_retry_first = std::chrono::seconds(5);
@@ -341,6 +344,11 @@ class service {
     for (auto& m : batch_.messages) link_publish(std::move(m));
     if (store_) store_->enqueue(batch_);
     batch_.clear();
+    const auto roomy = [](const auto& v) { return v.capacity() > k_batch_room_kept; };
+    if (roomy(batch_.messages) || roomy(batch_.events) || roomy(batch_.samples) || roomy(batch_.zone_snapshots) ||
+        roomy(batch_.loop_snapshots)) {
+      batch_ = engine_output{};
+    }
   }
 
   void link_publish(outbound_message m) {
