@@ -246,8 +246,9 @@ class service {
       core_->republish(service_now(), batch_);
       const std::size_t count = batch_.messages.size();
       dispatch();
-      log_->info("reconnected (connection {}): {} retained states and commands published again, in case the broker lost them",
-                 st.connections, count);
+      log_->info(
+          "reconnected (connection {}): {} retained states and commands published again, in case the broker lost them",
+          st.connections, count);
     }
     std::uint64_t outbox = 0;
     for (const auto d : st.dropped_outbox) outbox += d;

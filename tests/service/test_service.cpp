@@ -88,13 +88,15 @@ TEST_F(Service, RepublishesStatesAndCommandsAfterTheBrokerLostThem) {
   publish_readings(17.5);
   ASSERT_TRUE(wait_zone_state("room-a", "safe"));
   ASSERT_TRUE(watcher_->wait_for_payload("r/a/valve", "open", 10s));
-  ASSERT_TRUE(watcher_->wait_for("plant/l1/sp", [](const received_message&) { return true; }, 10s));
+  ASSERT_TRUE(watcher_->wait_for(
+      "plant/l1/sp", [](const received_message&) { return true; }, 10s));
 
   broker_.stop();
   broker_.start();
   {
     mqtt_test_client empty(broker_.uri(), {"dm/zone/#"});
-    EXPECT_FALSE(empty.wait_for("dm/zone/room-a/state", [](const received_message&) { return true; }, 300ms))
+    EXPECT_FALSE(empty.wait_for(
+        "dm/zone/room-a/state", [](const received_message&) { return true; }, 300ms))
         << "the broker really forgot";
   }
   const auto until = std::chrono::steady_clock::now() + 30s;
@@ -102,7 +104,8 @@ TEST_F(Service, RepublishesStatesAndCommandsAfterTheBrokerLostThem) {
     // A new subscriber each try: a retained message is what a subscription gets at once.
     do {
       mqtt_test_client probe(broker_.uri(), {topic});
-      const auto m = probe.wait_for(topic, [](const received_message& r) { return r.retained; }, 1s);
+      const auto m = probe.wait_for(
+          topic, [](const received_message& r) { return r.retained; }, 1s);
       if (m && (payload.empty() || m->payload == payload)) return true;
     } while (std::chrono::steady_clock::now() < until);
     return false;
@@ -112,7 +115,8 @@ TEST_F(Service, RepublishesStatesAndCommandsAfterTheBrokerLostThem) {
   EXPECT_TRUE(retained("dm/loop/loop-1/state", ""));
   ASSERT_TRUE(retained("dm/zone/room-a/state", ""));
   mqtt_test_client reader(broker_.uri(), {"dm/zone/room-a/state"});
-  const auto zone = reader.wait_for("dm/zone/room-a/state", [](const received_message& r) { return r.retained; }, 5s);
+  const auto zone = reader.wait_for(
+      "dm/zone/room-a/state", [](const received_message& r) { return r.retained; }, 5s);
   ASSERT_TRUE(zone);
   EXPECT_EQ(as_json(*zone)["band"], "safe");
   EXPECT_NE(service_->log_text().find("retained states and commands published again"), std::string::npos);

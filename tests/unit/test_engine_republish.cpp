@@ -47,8 +47,8 @@ TEST(EngineRepublish, EveryRetainedTopicGoesOutAgainWithTheLastCommands) {
   d.send("plant/doas/fault", "0");
   d.advance(2);
   const auto before = last_retained(d.log());
-  for (const char* topic : {"dm/zone/z1/state", "dm/zone/z2/state", "dm/loop/loop-a/state", "b/z1/valve",
-                            "b/z2/valve", "plant/a/sp", "plant/doas/dp", "dm/dehumidifier/doas-1/state"}) {
+  for (const char* topic : {"dm/zone/z1/state", "dm/zone/z2/state", "dm/loop/loop-a/state", "b/z1/valve", "b/z2/valve",
+                            "plant/a/sp", "plant/doas/dp", "dm/dehumidifier/doas-1/state"}) {
     ASSERT_EQ(before.count(topic), 1u) << topic << " was never published: the test would prove nothing";
   }
 

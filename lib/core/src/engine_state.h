@@ -146,7 +146,7 @@ struct engine::state {
 
   // engine_zones.cpp
   const zone_readings& readings_of(const zone_rt& z, timestamp now);
-  zone_readings scratch_readings;  // readings_of() fills it; read before the next call
+  zone_readings scratch_readings;      // readings_of() fills it; read before the next call
   std::vector<std::size_t> route_ids;  // route(): the slots of the message's topic
   void evaluate_zone(std::size_t zi, timestamp now, engine_output& out);
   void emit_band_event(const zone_rt& z, const band_step& step, bool switch_active, timestamp now, engine_output& out);

@@ -149,8 +149,8 @@ void engine::state::republish(timestamp now, engine_output& out) {
   publish_all(now, out);
   for (dehumidifier_rt& d : dehumidifiers) {
     if (d.published_request_c) {
-      out.messages.push_back({d.cfg->dew_point_request.topic, format_bare_number(*d.published_request_c), true,
-                              message_class::command});
+      out.messages.push_back(
+          {d.cfg->dew_point_request.topic, format_bare_number(*d.published_request_c), true, message_class::command});
     }
     publish_dehumidifier(d, now, out, true);
   }

@@ -333,7 +333,8 @@ result<std::unique_ptr<http_server>> http_server::start(http_server_options opti
   auto state = std::make_unique<impl>(std::move(options), snapshot);
   impl& s = *state;
   if (::pipe2(s.wake_pipe, O_CLOEXEC) != 0) {
-    return make_error(error_code::invalid_argument, std::string("http server: cannot make its wake pipe: ") + std::strerror(errno));
+    return make_error(error_code::invalid_argument,
+                      std::string("http server: cannot make its wake pipe: ") + std::strerror(errno));
   }
   s.server.set_payload_max_length(s.options.max_request_bytes);
   s.routes();
