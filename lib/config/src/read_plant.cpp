@@ -69,8 +69,9 @@ std::optional<setpoint_config> read_setpoint(const yaml_node& node, source_mark 
 }
 
 // Optional single input: absent is fine; present must be valid.
-bool read_optional_input(const map_reader& m, const char* key, input_kind kind, std::optional<input_config>& target,
-                         reading& r) {
+// Target: std::optional<input_config> or heap_optional<input_config>.
+template <typename Optional>
+bool read_optional_input(const map_reader& m, const char* key, input_kind kind, Optional& target, reading& r) {
   if (!m.has(key)) return true;
   target = read_input(*m.value(key), m.value_mark(key), key, m.context() + " " + key, kind, r);
   return target.has_value();

@@ -6,6 +6,8 @@
 #include <string>
 #include <vector>
 
+#include "dewmargin/heap_optional.h"
+
 namespace dewmargin {
 
 enum class input_unit {
@@ -55,8 +57,8 @@ struct zone_config {
   input_config air_temp;
   std::vector<input_config> humidity;  // at least one; highest dew point wins
   std::vector<input_config> surfaces;  // optional, any number; coldest wins
-  std::optional<input_config> condensation_switch;
-  std::optional<input_config> window_contact;
+  heap_optional<input_config> condensation_switch;  // on the heap: most zones have none
+  heap_optional<input_config> window_contact;
   std::optional<valve_config> valve;
   band_thresholds thresholds;  // defaults merged with per-zone overrides
 };
