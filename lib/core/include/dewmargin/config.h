@@ -55,8 +55,8 @@ struct zone_config {
   std::string id;
   std::string loop;
   input_config air_temp;
-  std::vector<input_config> humidity;  // at least one; highest dew point wins
-  std::vector<input_config> surfaces;  // optional, any number; coldest wins
+  std::vector<input_config> humidity;               // at least one; highest dew point wins
+  std::vector<input_config> surfaces;               // optional, any number; coldest wins
   heap_optional<input_config> condensation_switch;  // on the heap: most zones have none
   heap_optional<input_config> window_contact;
   std::optional<valve_config> valve;
