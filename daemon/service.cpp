@@ -40,7 +40,7 @@ constexpr std::size_t k_burst = 256;
 constexpr std::size_t k_max_early_messages = 1000;
 // Entries an output batch keeps room for between passes; a burst's room (the start, a
 // reconnect, a reload: a state per zone and more, 1.2 MB at 10,000 zones) is given back.
-constexpr std::size_t k_batch_room_kept = 1024;
+constexpr std::size_t k_batch_room_kept = 8192;  // above a busy tick at 10,000 zones
 // Opening the history database again after a failure: soon at first (a lock or a full disk
 // clears quickly), then less often.
 constexpr auto k_store_retry_first = std::chrono::seconds(5);
@@ -246,6 +246,7 @@ class service {
       core_->republish(service_now(), batch_);
       const std::size_t count = batch_.messages.size();
       dispatch();
+      trim_heap_when_sent_ = true;  // a burst like the start's: give back the room once it is sent
       log_->info(
           "reconnected (connection {}): {} retained states and commands published again, in case the broker lost them",
           st.connections, count);

@@ -72,8 +72,16 @@ TEST(EngineRepublish, EveryRetainedTopicGoesOutAgainWithTheLastCommands) {
       }
     }
   }
-  // Nothing but retained messages: no event is made up by a reconnect.
-  for (const auto& p : d.log()) EXPECT_TRUE(p.retained) << p.topic << " " << p.payload;
+  // Nothing but retained messages: no event is made up by a reconnect. The plant's commands
+  // first: a valve's close must not wait behind every state in the outbox.
+  bool state_seen = false;
+  for (const auto& p : d.log()) {
+    EXPECT_TRUE(p.retained) << p.topic << " " << p.payload;
+    if (p.cls == message_class::state) state_seen = true;
+    if (p.cls == message_class::command) {
+      EXPECT_FALSE(state_seen) << p.topic << " comes after a state";
+    }
+  }
   EXPECT_EQ(d.last_json("dm/zone/z1/state")["band"], "tight");
 }
 
@@ -88,6 +96,25 @@ TEST(EngineRepublish, ARepublishRightAfterTheStartSendsTheStartingStates) {
     ASSERT_EQ(again.count(topic), 1u) << topic;
     EXPECT_EQ(again.at(topic).payload, p.payload) << topic;  // same instant, same state
   }
+}
+
+// After a reload that moved the setpoint to another topic, the old topic is not the plant's
+// any more: only the new config's topics come back.
+TEST(EngineRepublish, AfterAReloadOnlyTheNewConfigsTopicsComeBack) {
+  engine_driver d(small_site());
+  for (int i = 0; i < 6; ++i) {
+    d.readings(24, 50, 17, 17);
+    d.advance(10);
+  }
+  ASSERT_FALSE(d.on_topic("plant/a/sp").empty());
+  site_config moved = small_site();
+  moved.loops[0].setpoint.topic = "plant/a/sp2";
+  d.reload(moved);
+  d.clear_log();
+  d.republish();
+  EXPECT_TRUE(d.on_topic("plant/a/sp").empty());
+  ASSERT_EQ(d.on_topic("plant/a/sp2").size(), 1u);
+  EXPECT_TRUE(d.on_topic("plant/a/sp2")[0].retained);
 }
 
 }  // namespace

@@ -107,7 +107,8 @@ TEST(InputRegistry, ANeverStaleMeasurementThatNeverReportsIsMissingOnceItsZoneSt
   EXPECT_EQ(f.reg[id].status, input_status::ok);
   for (const auto& c : f.staleness(30 * 86400.0)) EXPECT_NE(c.slot, id);
   // A zone whose own stale_after_s is 0 still waits only the default 180 s.
-  const std::size_t zero_zone = f.reg.add(input_kind::air_temp, topic("b/other"), {false, 1}, 0.0);
+  const input_config other = topic("b/other");
+  const std::size_t zero_zone = f.reg.add(input_kind::air_temp, other, {false, 1}, 0.0);
   EXPECT_EQ(f.reg[zero_zone].grace_s, 180.0);
 }
 

@@ -142,18 +142,26 @@ void engine::state::publish_all(timestamp now, engine_output& out) {
   for (loop_rt& l : loops) publish_loop(l, now, out, true);
 }
 
-// After a reconnect: what the plant was told is told again (the setpoint and request would
-// otherwise go out only when they move), with every state as it stands now.
+// After a reconnect: what the plant was told is told again first (a valve close must not
+// wait behind thousands of states in the outbox), then every state as it stands now.
 void engine::state::republish(timestamp now, engine_output& out) {
-  for (loop_rt& l : loops) l.published_bare.clear();  // publish_loop() then sends the setpoint
-  publish_all(now, out);
-  for (dehumidifier_rt& d : dehumidifiers) {
+  for (const zone_rt& z : zones) {
+    if (z.valve && z.valve->position() != valve_position::unset) publish_valve(z, z.valve->position(), out);
+  }
+  for (const loop_rt& l : loops) {
+    if (!l.published_bare.empty()) {
+      out.messages.push_back({l.cfg->setpoint.topic, l.published_bare, true, message_class::command});
+    }
+  }
+  for (const dehumidifier_rt& d : dehumidifiers) {
     if (d.published_request_c) {
       out.messages.push_back(
           {d.cfg->dew_point_request.topic, format_bare_number(*d.published_request_c), true, message_class::command});
     }
-    publish_dehumidifier(d, now, out, true);
   }
+  for (zone_rt& z : zones) publish_zone(z, now, out, true);
+  for (loop_rt& l : loops) publish_loop(l, now, out, true);  // and a setpoint moved since, if any
+  for (dehumidifier_rt& d : dehumidifiers) publish_dehumidifier(d, now, out, true);
 }
 
 // Shutdown: the current minute's samples and the state to restore next time.

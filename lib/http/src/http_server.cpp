@@ -16,6 +16,7 @@
 #include <nlohmann/json.hpp>
 #include <thread>
 
+#include "accept_loop.h"
 #include "connection_gate.h"
 #include "dewmargin/live_book.h"
 #include "dewmargin/metrics_text.h"
@@ -113,44 +114,17 @@ class gated_server final : public httplib::Server {
   // on the bound socket raises the backlog (Linux takes a second listen() as an update).
   bool widen_backlog(int backlog) { return ::listen(svr_sock_, backlog) == 0; }
 
-  // Our accept loop, not httplib's listen_after_bind(): that one ends for good on any
-  // accept() error but EMFILE, EINTR and EAGAIN (ENFILE, ENOBUFS, ENOMEM, EPROTO and the
-  // like), and the page and metrics would be gone while the service ran on. Here an error
-  // is waited out and accepting goes on until the wake pipe says stop. Each connection goes
-  // straight to the gate: accepting never waits on a client.
+  // Accepts until wake_fd is readable (accept_loop.h: why not httplib's own loop).
   void accept_until_woken(http_detail::connection_gate& gate, int wake_fd, std::chrono::milliseconds io_timeout) {
-    const int listen_fd = svr_sock_;
-    const int flags = ::fcntl(listen_fd, F_GETFL);
-    if (flags >= 0) (void)::fcntl(listen_fd, F_SETFL, flags | O_NONBLOCK);  // poll said ready, but the peer may be gone
-    pollfd fds[2] = {{listen_fd, POLLIN, 0}, {wake_fd, POLLIN, 0}};
-    for (;;) {
-      fds[0].revents = fds[1].revents = 0;
-      if (::poll(fds, 2, -1) < 0) {
-        if (errno != EINTR) std::this_thread::sleep_for(k_accept_backoff);
-        continue;
-      }
-      if (fds[1].revents != 0) return;
-      if ((fds[0].revents & POLLIN) == 0) {
-        std::this_thread::sleep_for(k_accept_backoff);  // POLLERR or POLLNVAL: do not spin
-        continue;
-      }
-      const int fd = ::accept4(listen_fd, nullptr, nullptr, SOCK_CLOEXEC);
-      if (fd < 0) {
-        // Out of descriptors or buffers, the peer gone before accept: the connection waits in
-        // the backlog (or is lost to its client alone); try again shortly rather than spin.
-        if (errno != EAGAIN && errno != EWOULDBLOCK && errno != EINTR && errno != ECONNABORTED) {
-          std::this_thread::sleep_for(k_accept_backoff);
-        }
-        continue;
-      }
-      // A second bound beside the request deadline: a send into a client that reads nothing
-      // cannot block a worker past it.
-      const timeval tv{static_cast<time_t>(io_timeout.count() / 1000),
-                       static_cast<suseconds_t>((io_timeout.count() % 1000) * 1000)};
+    // A second bound beside the request deadline: a send into a client that reads nothing
+    // cannot block a worker past it.
+    const timeval tv{static_cast<time_t>(io_timeout.count() / 1000),
+                     static_cast<suseconds_t>((io_timeout.count() % 1000) * 1000)};
+    http_detail::run_accept_loop(svr_sock_, wake_fd, http_detail::accept_connection, [&gate, tv](int fd) {
       (void)::setsockopt(fd, SOL_SOCKET, SO_RCVTIMEO, &tv, sizeof tv);
       (void)::setsockopt(fd, SOL_SOCKET, SO_SNDTIMEO, &tv, sizeof tv);
       gate.admit(fd);
-    }
+    });
   }
 
   void close_listener() {
@@ -174,9 +148,6 @@ class gated_server final : public httplib::Server {
     ::shutdown(fd, SHUT_RDWR);
     ::close(fd);
   }
-
- private:
-  static constexpr std::chrono::milliseconds k_accept_backoff{20};
 };
 
 // Compares without an early exit, so the time taken does not tell how much was right.

@@ -90,7 +90,9 @@ struct input_counts {
 class input_registry {
  public:
   // `default_stale_s`: the zone's or loop's stale_after_s, for inputs without their own.
+  // `cfg` must outlive the registry: the slot and the topic index refer to it.
   std::size_t add(input_kind kind, const input_config& cfg, input_owner owner, double default_stale_s);
+  std::size_t add(input_kind kind, const input_config&& cfg, input_owner owner, double default_stale_s) = delete;
   // Room for this many slots, so that adding them allocates once.
   void reserve(std::size_t slots) {
     slots_.reserve(slots);
