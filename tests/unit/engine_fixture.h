@@ -70,6 +70,13 @@ inline site_config small_site() {
   return s;
 }
 
+// Relative humidity (%) of air at `air_c` whose dew point is `dew_point_c`: the Magnus
+// formula with Sonntag's coefficients as given in WMO-No. 8 (17.62, 243.12 °C), inverted.
+inline double rh_for(double air_c, double dew_point_c) {
+  const double a = 17.62, b = 243.12;
+  return 100.0 * std::exp(a * dew_point_c / (b + dew_point_c) - a * air_c / (b + air_c));
+}
+
 inline std::string bare(double v) {
   char buf[32];
   std::snprintf(buf, sizeof buf, "%.2f", std::round(v * 100.0) / 100.0);

@@ -4,7 +4,6 @@
 // stand now.
 #include <gtest/gtest.h>
 
-#include <cmath>
 #include <map>
 #include <set>
 #include <string>
@@ -16,14 +15,8 @@ namespace {
 
 using testing_support::engine_driver;
 using testing_support::published;
+using testing_support::rh_for;
 using testing_support::small_site;
-
-// Relative humidity (%) of air at `air_c` whose dew point is `dew_point_c`: the Magnus
-// formula with Sonntag's coefficients as given in WMO-No. 8 (17.62, 243.12 °C), inverted.
-double rh_for(double air_c, double dew_point_c) {
-  const double a = 17.62, b = 243.12;
-  return 100.0 * std::exp(a * dew_point_c / (b + dew_point_c) - a * air_c / (b + air_c));
-}
 
 std::map<std::string, published> last_retained(const std::vector<published>& log) {
   std::map<std::string, published> last;

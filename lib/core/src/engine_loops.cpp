@@ -127,7 +127,7 @@ void engine::state::tick_dehumidifiers(timestamp now, engine_output& out) {
       events.emit(out, now, d.subject(), event_kind::dehumidify, [&](event_json& e) {
         e.number("from", d.published_request_c).number("to", r.request_c).text("reason", r.reason);
       });
-      out.messages.push_back({rc.topic, format_bare_number(r.request_c), true, message_class::command});
+      publish_request(d, r.request_c, out);
       d.published_request_c = r.request_c;
     }
     judge_unit_fault(d, now, out);
@@ -168,6 +168,12 @@ void engine::state::judge_unit_fault(dehumidifier_rt& d, timestamp now, engine_o
       },
       true);
   publish_dehumidifier(d, now, out, true);
+}
+
+// The unit's dew-point request: a bare number, retained like every plant command (a unit that
+// restarts finds it on the broker).
+void engine::state::publish_request(const dehumidifier_rt& d, double request_c, engine_output& out) const {
+  out.messages.push_back({d.cfg->dew_point_request.topic, format_bare_number(request_c), true, message_class::command});
 }
 
 void engine::state::publish_dehumidifier(dehumidifier_rt& d, timestamp now, engine_output& out, bool force) {

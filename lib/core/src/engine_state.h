@@ -166,6 +166,7 @@ struct engine::state {
   void tick_dehumidifiers(timestamp now, engine_output& out);
   void judge_unit_fault(dehumidifier_rt& d, timestamp now, engine_output& out);
   void publish_dehumidifier(dehumidifier_rt& d, timestamp now, engine_output& out, bool force);
+  void publish_request(const dehumidifier_rt& d, double request_c, engine_output& out) const;
   // The dehumidifier whose standing alarm suppresses this zone's tight/alarm annunciation.
   const std::string* suppressor_of(std::size_t zi) const;
 

@@ -10,7 +10,6 @@
 // to snapshot_of()/restore() as well when it must survive a restart.
 #include <algorithm>
 
-#include "dewmargin/message_json.h"
 #include "engine_state.h"
 
 namespace dewmargin {
@@ -154,10 +153,7 @@ void engine::state::republish(timestamp now, engine_output& out) {
     }
   }
   for (const dehumidifier_rt& d : dehumidifiers) {
-    if (d.published_request_c) {
-      out.messages.push_back(
-          {d.cfg->dew_point_request.topic, format_bare_number(*d.published_request_c), true, message_class::command});
-    }
+    if (d.published_request_c) publish_request(d, *d.published_request_c, out);
   }
   for (zone_rt& z : zones) publish_zone(z, now, out, true);
   for (loop_rt& l : loops) publish_loop(l, now, out, true);  // and a setpoint moved since, if any
